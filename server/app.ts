@@ -1,0 +1,92 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import express, { Router, type Express } from 'express';
+import helmet from 'helmet';
+import { pinoHttp } from 'pino-http';
+import { csrfProtection, installSessions } from './auth/session.js';
+import type { Deps } from './deps.js';
+import { registerAuthRoutes } from './features/auth/auth.routes.js';
+import { registerPatientRoutes } from './features/patients/patients.routes.js';
+import { registerUserRoutes } from './features/users/users.routes.js';
+import { registerVisitRoutes } from './features/visits/visits.routes.js';
+import { errorHandler } from './lib/error-handler.js';
+import { HttpError } from './lib/errors.js';
+
+/**
+ * Every API route, registered with its full path on one router so the role-matrix test can list them all.
+ * Each feature adds its routes through one `register…Routes` function.
+ */
+export function buildApiRouter(deps: Deps): Router {
+  const r = Router();
+  r.get('/api/health', (_req, res) => {
+    res.json({ status: 'ok' });
+  });
+  registerAuthRoutes(r, deps);
+  registerUserRoutes(r, deps);
+  registerPatientRoutes(r, deps);
+  registerVisitRoutes(r, deps);
+  return r;
+}
+
+/** The Express app without `listen()`, so tests can drive it with supertest. */
+export function createApp(deps: Deps, opts: { staticDir?: string } = {}): Express & { apiRouter: Router } {
+  const app = express();
+  app.set('trust proxy', deps.config.secureCookies ? 1 : false);
+  app.disable('x-powered-by');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: false,
+        directives: {
+          defaultSrc: ["'self'"],
+          baseUri: ["'self'"],
+          scriptSrc: ["'self'"],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          fontSrc: ["'self'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          mediaSrc: ["'self'", 'blob:'],
+          connectSrc: ["'self'"],
+          workerSrc: ["'self'", 'blob:'],
+          objectSrc: ["'none'"],
+          frameAncestors: ["'none'"],
+          formAction: ["'self'"],
+        },
+      },
+    }),
+  );
+  app.use(
+    pinoHttp({
+      logger: deps.logger,
+      // Only method, path and status: never bodies, cookies, tokens or photo bytes.
+      serializers: {
+        req: (req: { method: string; url: string }) => ({ method: req.method, url: req.url.split('?')[0] }),
+        res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
+      },
+      autoLogging: { ignore: (req) => !req.url?.startsWith('/api/') },
+    }),
+  );
+  app.use('/api', (_req, res, next) => {
+    res.set('Cache-Control', 'no-store');
+    next();
+  });
+  app.use('/api', express.json({ limit: '256kb' }));
+  app.locals.passport = installSessions(app, deps.db, deps.config);
+  app.use('/api', csrfProtection);
+
+  const apiRouter = buildApiRouter(deps);
+  app.use(apiRouter);
+  app.use('/api', (req, _res, next) => next(new HttpError(404, 'NOT_FOUND', `No API route ${req.method} ${req.originalUrl}.`)));
+
+  const staticDir = opts.staticDir;
+  if (staticDir && fs.existsSync(path.join(staticDir, 'index.html'))) {
+    // Hashed bundles never change; everything else is revalidated.
+    app.use('/assets', express.static(path.join(staticDir, 'assets'), { maxAge: '1y', immutable: true }));
+    app.use(express.static(staticDir, { index: false }));
+    app.get('/{*splat}', (_req, res) => {
+      res.set('Cache-Control', 'no-cache');
+      res.sendFile(path.join(staticDir, 'index.html'));
+    });
+  }
+  app.use(errorHandler(deps.logger));
+  return Object.assign(app, { apiRouter });
+}

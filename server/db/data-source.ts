@@ -1,0 +1,46 @@
+import 'reflect-metadata';
+import path from 'node:path';
+import { DataSource } from 'typeorm';
+import { AuditEvent } from '../entities/audit-event.js';
+import { LoginFailure } from '../entities/login-failure.js';
+import { Patient } from '../entities/patient.js';
+import { Session } from '../entities/session.js';
+import { User } from '../entities/user.js';
+import { Visit } from '../entities/visit.js';
+import { Foundation1764600000000 } from './migrations/1764600000000-foundation.js';
+
+export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure];
+
+/** Listed explicitly (not globbed) so the same list works under tsx, vitest and a build. */
+export const MIGRATIONS = [Foundation1764600000000];
+
+/**
+ * Builds the SQLite data source. `database` is a file path, or ":memory:" in tests.
+ */
+export function createDataSource(database: string): DataSource {
+  return new DataSource({
+    type: 'better-sqlite3',
+    database,
+    entities: ENTITIES,
+    migrations: MIGRATIONS,
+    migrationsRun: false,
+    synchronize: false,
+    logging: false,
+    prepareDatabase: (db: { pragma: (s: string) => unknown }) => {
+      db.pragma('journal_mode = WAL');
+      db.pragma('foreign_keys = ON');
+      db.pragma('busy_timeout = 5000');
+    },
+  });
+}
+
+/** Opens the database and brings its schema up to date. */
+export async function openDatabase(database: string): Promise<DataSource> {
+  const ds = createDataSource(database);
+  await ds.initialize();
+  await ds.runMigrations({ transaction: 'each' });
+  return ds;
+}
+
+/** Used by the TypeORM CLI (`migration:generate`). */
+export default createDataSource(process.env.TWINFRAME_DB ?? path.resolve('storage', 'twinframe.sqlite'));

@@ -1,0 +1,10 @@
+import type { Logger } from 'pino';
+import type { DataSource } from 'typeorm';
+import type { Config } from './config.js';
+
+/** Everything the app needs from outside; tests build their own. */
+export interface Deps {
+  db: DataSource;
+  config: Config;
+  logger: Logger;
+}

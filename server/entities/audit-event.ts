@@ -1,0 +1,44 @@
+import { Column, Entity, Index, PrimaryColumn } from 'typeorm';
+
+/** One line of the access log. Append-only: database triggers refuse UPDATE and DELETE. */
+@Entity('audit_event')
+@Index(['at'])
+@Index(['patientId', 'at'])
+@Index(['actorId', 'at'])
+export class AuditEvent {
+  @PrimaryColumn('varchar', { length: 36 })
+  id: string;
+
+  @Column('varchar', { length: 30 })
+  at: string;
+
+  @Column('varchar', { length: 36, nullable: true })
+  actorId: string | null;
+
+  /** Role at the time (admin, practitioner, coordinator, handover, anonymous). */
+  @Column('varchar', { length: 20 })
+  actorRole: string;
+
+  /** Dotted action name, e.g. "auth.login", "patient.view". */
+  @Column('varchar', { length: 60 })
+  action: string;
+
+  @Column('varchar', { length: 36, nullable: true })
+  patientId: string | null;
+
+  @Column('varchar', { length: 40, nullable: true })
+  targetType: string | null;
+
+  @Column('varchar', { length: 64, nullable: true })
+  targetId: string | null;
+
+  @Column('varchar', { length: 64, nullable: true })
+  ip: string | null;
+
+  @Column('varchar', { length: 300, nullable: true })
+  userAgent: string | null;
+
+  /** Small JSON object with non-sensitive details. */
+  @Column('text', { default: '{}' })
+  details: string;
+}

@@ -1,0 +1,36 @@
+import { Column, Entity, PrimaryColumn } from 'typeorm';
+
+@Entity('patient')
+export class Patient {
+  @PrimaryColumn('varchar', { length: 36 })
+  id: string;
+
+  /** Short code used at the front desk, e.g. "LR-0042". */
+  @Column('varchar', { length: 16, unique: true })
+  code: string;
+
+  @Column('varchar', { length: 80 })
+  firstName: string;
+
+  @Column('varchar', { length: 80 })
+  lastName: string;
+
+  /** ISO date (YYYY-MM-DD). */
+  @Column('varchar', { length: 10 })
+  dateOfBirth: string;
+
+  @Column('varchar', { length: 254, nullable: true })
+  email: string | null;
+
+  @Column('varchar', { length: 40, nullable: true })
+  phone: string | null;
+
+  @Column('boolean', { default: false })
+  archived: boolean;
+
+  @Column('varchar', { length: 30 })
+  createdAt: string;
+
+  @Column('varchar', { length: 30 })
+  updatedAt: string;
+}

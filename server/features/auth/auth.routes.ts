@@ -1,0 +1,39 @@
+import type { Router } from 'express';
+import { allow, STAFF } from '../../auth/access.js';
+import { csrf } from '../../auth/session.js';
+import type { Deps } from '../../deps.js';
+import { audit } from '../../lib/audit.js';
+import { HttpError } from '../../lib/errors.js';
+import { validate } from '../../lib/validate.js';
+import { loginSchema } from './auth.schemas.js';
+
+export function registerAuthRoutes(r: Router, { db }: Deps): void {
+  r.get('/api/auth/csrf', (req, res) => {
+    res.json({ token: csrf.generateToken(req) });
+  });
+
+  r.post('/api/auth/login', validate({ body: loginSchema }), (req, res, next) => {
+    req.app.locals.passport.authenticate('local', (err: unknown, user: Express.User | false) => {
+      if (err) return next(err);
+      if (!user) return next(new HttpError(400, 'BAD_REQUEST', 'Enter your e-mail and password.'));
+      req.login(user, (loginErr) => {
+        if (loginErr) return next(loginErr);
+        audit(db, req, { action: 'auth.login' })
+          .then(() => res.json(user))
+          .catch(next);
+      });
+    })(req, res, next);
+  });
+
+  r.post('/api/auth/logout', allow(...STAFF, 'handover'), async (req, res) => {
+    await audit(db, req, { action: 'auth.logout' });
+    await new Promise<void>((resolve, reject) => req.logout((e) => (e ? reject(e) : resolve())));
+    await new Promise<void>((resolve, reject) => req.session.destroy((e) => (e ? reject(e) : resolve())));
+    res.clearCookie('tf.sid');
+    res.status(204).end();
+  });
+
+  r.get('/api/auth/me', allow(...STAFF), (req, res) => {
+    res.json(req.user);
+  });
+}

@@ -1,0 +1,45 @@
+import 'reflect-metadata';
+import fs from 'node:fs';
+import path from 'node:path';
+import { createApp } from './app.js';
+import { loadConfig } from './config.js';
+import { openDatabase } from './db/data-source.js';
+import { DEMO_USERS, seedDemo } from './db/seed.js';
+import { startS3Fake, startSmtpFake, type RunningService } from './dev-services.js';
+import { createLogger } from './logger.js';
+
+const config = loadConfig();
+const logger = createLogger(config.logLevel);
+fs.mkdirSync(config.dataDir, { recursive: true });
+
+const services: RunningService[] = [];
+if (config.startFakes) {
+  services.push(await startS3Fake(path.join(config.dataDir, 'objects'), config.s3.fakePort, config.s3.bucket));
+  services.push(await startSmtpFake(path.join(config.dataDir, 'mail'), config.smtp.fakePort));
+}
+
+const db = await openDatabase(path.join(config.dataDir, 'twinframe.sqlite'));
+const seeded = config.demo ? await seedDemo(db) : false;
+
+const app = createApp({ db, config, logger }, { staticDir: path.resolve('dist') });
+const server = app.listen(config.port, () => {
+  const url = `http://localhost:${config.port}`;
+  const lines = [`Twinframe is running at ${url}`, `Data: ${config.dataDir}${seeded ? ' (demo clinic seeded)' : ''}`];
+  if (config.demo) {
+    lines.push('Demo sign-ins:');
+    for (const u of DEMO_USERS) lines.push(`  ${u.role.padEnd(13)} ${u.email.padEnd(28)} ${u.password}`);
+  }
+  console.log(lines.join('\n'));
+});
+
+let stopping = false;
+async function shutdown() {
+  if (stopping) return;
+  stopping = true;
+  server.close();
+  await Promise.allSettled(services.map((s) => s.close()));
+  await db.destroy();
+  process.exit(0);
+}
+process.on('SIGINT', shutdown);
+process.on('SIGTERM', shutdown);

@@ -1,0 +1,92 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Router } from 'express';
+import { Client, makeTestApp, signedIn, type TestApp } from '../helpers/app.js';
+
+/**
+ * Who may call each API route. `public` routes answer anyone; every other route must answer
+ * 401 to anonymous callers and 403 to roles not listed. A route missing here fails the test.
+ */
+type Who = 'public' | 'admin' | 'practitioner' | 'coordinator' | 'handover';
+const STAFF: Who[] = ['admin', 'practitioner', 'coordinator'];
+const CLINICAL: Who[] = ['admin', 'practitioner'];
+
+export const EXPECTED: Record<string, Who[]> = {
+  'GET /api/health': ['public'],
+  'GET /api/auth/csrf': ['public'],
+  'POST /api/auth/login': ['public'],
+  'POST /api/auth/logout': [...STAFF, 'handover'],
+  'GET /api/auth/me': STAFF,
+  'GET /api/users': ['admin'],
+  'POST /api/users': ['admin'],
+  'PATCH /api/users/:id': ['admin'],
+  'POST /api/users/:id/password': ['admin'],
+  'GET /api/practitioners': STAFF,
+  'GET /api/patients': STAFF,
+  'POST /api/patients': STAFF,
+  'GET /api/patients/:id': STAFF,
+  'PATCH /api/patients/:id': STAFF,
+  'GET /api/patients/:id/visits': STAFF,
+  'POST /api/patients/:id/visits': STAFF,
+  'GET /api/visits/:id': STAFF,
+  'PATCH /api/visits/:id': STAFF,
+  'GET /api/clinic-day': STAFF,
+};
+void CLINICAL;
+
+/** Every (method, path) registered on the API router, read from the router itself. */
+function registeredRoutes(router: Router): string[] {
+  const out: string[] = [];
+  for (const layer of router.stack as { route?: { path: string; methods: Record<string, boolean> } }[]) {
+    if (!layer.route) continue;
+    for (const m of Object.keys(layer.route.methods)) {
+      if (m === '_all') continue;
+      out.push(`${m.toUpperCase()} ${layer.route.path}`);
+    }
+  }
+  return out;
+}
+
+const FAKE_ID = '00000000-0000-4000-8000-000000000000';
+
+let t: TestApp;
+const clients: Partial<Record<Who | 'anonymous', Client>> = {};
+
+beforeAll(async () => {
+  t = await makeTestApp();
+  clients.anonymous = new Client(t.app);
+  await clients.anonymous.refreshCsrf();
+  for (const role of ['admin', 'practitioner', 'coordinator'] as const) clients[role] = (await signedIn(t, role)).client;
+});
+afterAll(() => t.close());
+
+describe('role matrix', () => {
+  const routes = () => registeredRoutes(t.app.apiRouter);
+
+  it('lists every registered route in the table, and nothing that is not registered', () => {
+    const registered = routes();
+    expect(registered.length).toBeGreaterThan(10);
+    expect(registered.filter((r) => !(r in EXPECTED))).toEqual([]);
+    expect(Object.keys(EXPECTED).filter((r) => !registered.includes(r))).toEqual([]);
+  });
+
+  it('answers each route per role as the table says', async () => {
+    const failures: string[] = [];
+    for (const key of routes()) {
+      const [method, path] = key.split(' ');
+      if (key === 'POST /api/auth/logout' || key === 'POST /api/auth/login') continue; // would end or change the test sessions; covered in auth tests
+      const url = path.replace(/:[A-Za-z]+/g, FAKE_ID);
+      const allowed = EXPECTED[key] ?? [];
+      for (const who of ['anonymous', 'admin', 'practitioner', 'coordinator'] as const) {
+        const c = clients[who]!;
+        const call = method === 'GET' ? c.get(url) : (c as unknown as Record<string, (u: string) => ReturnType<Client['post']>>)[method.toLowerCase()](url).send({});
+        const res = await call;
+        const ok = allowed.includes('public') || (who !== 'anonymous' && allowed.includes(who));
+        const refused = res.status === 401 || res.status === 403;
+        const expected = ok ? 'allowed' : who === 'anonymous' ? '401' : '403';
+        const got = ok ? (refused ? `${res.status}` : 'allowed') : `${res.status}`;
+        if (expected !== got) failures.push(`${key} as ${who}: expected ${expected}, got ${got} ${JSON.stringify(res.body?.error ?? '')}`);
+      }
+    }
+    expect(failures).toEqual([]);
+  });
+});
