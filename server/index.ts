@@ -7,6 +7,7 @@ import { openDatabase } from './db/data-source.js';
 import { DEMO_USERS, seedDemo } from './db/seed.js';
 import { startS3Fake, startSmtpFake, type RunningService } from './dev-services.js';
 import { createLogger } from './logger.js';
+import { createObjectStore } from './storage/object-store.js';
 
 const config = loadConfig();
 const logger = createLogger(config.logLevel);
@@ -18,10 +19,13 @@ if (config.startFakes) {
   services.push(await startSmtpFake(path.join(config.dataDir, 'mail'), config.smtp.fakePort));
 }
 
+const storage = createObjectStore(config.s3);
+await storage.ensureBucket();
+
 const db = await openDatabase(path.join(config.dataDir, 'twinframe.sqlite'));
 const seeded = config.demo ? await seedDemo(db) : false;
 
-const app = createApp({ db, config, logger }, { staticDir: path.resolve('dist') });
+const app = createApp({ db, config, logger, storage }, { staticDir: path.resolve('dist') });
 const server = app.listen(config.port, () => {
   const url = `http://localhost:${config.port}`;
   const lines = [`Twinframe is running at ${url}`, `Data: ${config.dataDir}${seeded ? ' (demo clinic seeded)' : ''}`];

@@ -1,3 +1,6 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import request from 'supertest';
 import type { DataSource } from 'typeorm';
 import { createApp } from '../../server/app.js';
@@ -8,6 +11,8 @@ import type { Deps } from '../../server/deps.js';
 import { Patient } from '../../server/entities/patient.js';
 import { User, type Role } from '../../server/entities/user.js';
 import { createLogger } from '../../server/logger.js';
+import { startS3Fake, type RunningService } from '../../server/dev-services.js';
+import { createObjectStore } from '../../server/storage/object-store.js';
 import { newId, nowIso } from '../../server/lib/time.js';
 
 export const TEST_PASSWORD = 'correct-horse-battery';
@@ -17,16 +22,43 @@ export interface TestApp {
   db: DataSource;
   config: Config;
   deps: Deps;
+  dataDir: string;
+  s3: RunningService;
+  /** Stops the S3 fake and starts it again on the same port and directory (for fault tests). */
+  restartS3(): Promise<void>;
   close(): Promise<void>;
 }
 
-/** A real app on a fresh in-memory SQLite database. */
+/** A real app on a fresh in-memory SQLite database and a fresh bucket in its own S3 fake. */
 export async function makeTestApp(env: Record<string, string> = {}, extra: Partial<Deps> = {}): Promise<TestApp> {
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'twinframe-test-'));
   const db = await openDatabase(':memory:');
-  const config = loadConfig({ TWINFRAME_DATA_DIR: '/tmp/twinframe-test-unused', ...env });
-  const deps: Deps = { db, config, logger: createLogger('silent'), ...extra };
+  const objectsDir = path.join(dataDir, 'objects');
+  let s3 = await startS3Fake(objectsDir, 0, 'twinframe-test');
+  const config = loadConfig({ TWINFRAME_DATA_DIR: dataDir, S3_BUCKET: 'twinframe-test', S3_FAKE_PORT: String(s3.port), ...env });
+  const storage = createObjectStore(config.s3);
+  await storage.ensureBucket();
+  const deps: Deps = { db, config, logger: createLogger('silent'), storage, ...extra };
   const app = createApp(deps);
-  return { app, db, config, deps, close: () => db.destroy() };
+  const t: TestApp = {
+    app,
+    db,
+    config,
+    deps,
+    dataDir,
+    s3,
+    async restartS3() {
+      await t.s3.close();
+      s3 = await startS3Fake(objectsDir, config.s3.fakePort, 'twinframe-test');
+      t.s3 = s3;
+    },
+    async close() {
+      await db.destroy();
+      await t.s3.close();
+      fs.rmSync(dataDir, { recursive: true, force: true });
+    },
+  };
+  return t;
 }
 
 export async function createUser(db: DataSource, role: Role, overrides: Partial<User> = {}): Promise<User> {
