@@ -1,5 +1,6 @@
 import { Column, Entity, Index, JoinColumn, ManyToOne, PrimaryColumn, type Relation } from 'typeorm';
 import { Patient } from './patient.js';
+import { DEFAULT_SHOT_LIST_ID } from './shot-list.js';
 import { User } from './user.js';
 
 export const VISIT_KINDS = ['consultation', 'treatment', 'review', 'follow-up'] as const;
@@ -40,6 +41,10 @@ export class Visit {
 
   @Column('text', { default: '' })
   notes: string;
+
+  /** The shot list whose views are photographed at this visit. */
+  @Column('varchar', { length: 36, default: DEFAULT_SHOT_LIST_ID })
+  shotListId: string;
 
   @Column('varchar', { length: 30 })
   createdAt: string;
