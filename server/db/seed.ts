@@ -59,7 +59,8 @@ export async function seedDemo(db: DataSource): Promise<boolean> {
     for (const u of DEMO_USERS) {
       users.push({ id: newId(), email: u.email, name: u.name, role: u.role, passwordHash: await hashPassword(u.password), active: true, createdAt: now, updatedAt: now });
     }
-    await tx.getRepository(User).insert(users);
+    // One row per insert: a bulk insert on SQLite re-assigns the objects' string ids afterwards (TypeORM 1.1).
+    for (const u of users) await tx.getRepository(User).insert(u);
     const practitioners = users.filter((u) => u.role === 'practitioner');
 
     const patients = DEMO_PATIENTS.map(([firstName, lastName, dateOfBirth, email, phone], i) => ({
@@ -74,7 +75,7 @@ export async function seedDemo(db: DataSource): Promise<boolean> {
       createdAt: now,
       updatedAt: now,
     }));
-    await tx.getRepository(Patient).insert(patients);
+    for (const p of patients) await tx.getRepository(Patient).insert(p);
 
     const visits: Partial<Visit>[] = [];
     patients.forEach((p, i) => {
@@ -96,7 +97,7 @@ export async function seedDemo(db: DataSource): Promise<boolean> {
     today.forEach(([pi, kind, status, hour, minute], k) => {
       visits.push({ id: newId(), patientId: patients[pi].id, practitionerId: practitioners[k % practitioners.length].id, startsAt: atHour(0, hour, minute), kind, status, notes: '', createdAt: now, updatedAt: now });
     });
-    await tx.getRepository(Visit).insert(visits);
+    for (const v of visits) await tx.getRepository(Visit).insert(v);
   });
   return true;
 }
