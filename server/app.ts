@@ -6,6 +6,7 @@ import { pinoHttp } from 'pino-http';
 import { csrfProtection, installSessions } from './auth/session.js';
 import type { Deps } from './deps.js';
 import { registerAuthRoutes } from './features/auth/auth.routes.js';
+import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
 import { registerUserRoutes } from './features/users/users.routes.js';
 import { registerVisitRoutes } from './features/visits/visits.routes.js';
@@ -25,6 +26,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerUserRoutes(r, deps);
   registerPatientRoutes(r, deps);
   registerVisitRoutes(r, deps);
+  registerOutboxRoutes(r, deps);
   return r;
 }
 

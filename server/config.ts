@@ -22,7 +22,9 @@ export interface Config {
     secretAccessKey: string;
     fakePort: number;
   };
-  smtp: { host: string; port: number; from: string; fakePort: number };
+  smtp: { host: string; port: number; from: string; fakePort: number; secure: boolean; user?: string; pass?: string };
+  /** How long a hand-over stays open before the device must go back to staff. */
+  handoverMinutes: number;
   logLevel: string;
 }
 
@@ -60,7 +62,11 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
       port: int(env.SMTP_PORT, smtpFakePort),
       from: env.MAIL_FROM ?? 'Twinframe <no-reply@twinframe.invalid>',
       fakePort: smtpFakePort,
+      secure: env.SMTP_SECURE === '1',
+      user: env.SMTP_USER || undefined,
+      pass: env.SMTP_PASS || undefined,
     },
+    handoverMinutes: int(env.TWINFRAME_HANDOVER_MINUTES, 30),
     logLevel: env.LOG_LEVEL ?? 'info',
   };
 }

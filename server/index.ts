@@ -7,6 +7,8 @@ import { openDatabase } from './db/data-source.js';
 import { DEMO_USERS, seedDemo } from './db/seed.js';
 import { startS3Fake, startSmtpFake, type RunningService } from './dev-services.js';
 import { createLogger } from './logger.js';
+import { createMailer } from './mail/outbox.js';
+import { createSmtpTransport } from './mail/transport.js';
 import { createObjectStore } from './storage/object-store.js';
 
 const config = loadConfig();
@@ -25,7 +27,10 @@ await storage.ensureBucket();
 const db = await openDatabase(path.join(config.dataDir, 'twinframe.sqlite'));
 const seeded = config.demo ? await seedDemo(db) : false;
 
-const app = createApp({ db, config, logger, storage }, { staticDir: path.resolve('dist') });
+const mailer = createMailer({ db, storage, transport: createSmtpTransport(config.smtp), from: config.smtp.from, logger });
+mailer.start();
+
+const app = createApp({ db, config, logger, storage, mailer }, { staticDir: path.resolve('dist') });
 const server = app.listen(config.port, () => {
   const url = `http://localhost:${config.port}`;
   const lines = [`Twinframe is running at ${url}`, `Data: ${config.dataDir}${seeded ? ' (demo clinic seeded)' : ''}`];
@@ -41,6 +46,7 @@ async function shutdown() {
   if (stopping) return;
   stopping = true;
   server.close();
+  await mailer.stop();
   await Promise.allSettled(services.map((s) => s.close()));
   await db.destroy();
   process.exit(0);

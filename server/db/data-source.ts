@@ -3,6 +3,7 @@ import path from 'node:path';
 import { DataSource } from 'typeorm';
 import { AuditEvent } from '../entities/audit-event.js';
 import { LoginFailure } from '../entities/login-failure.js';
+import { MailLog } from '../entities/mail-log.js';
 import { Patient } from '../entities/patient.js';
 import { Photo } from '../entities/photo.js';
 import { Session } from '../entities/session.js';
@@ -11,11 +12,12 @@ import { User } from '../entities/user.js';
 import { Visit } from '../entities/visit.js';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation.js';
 import { Photos1764700000000 } from './migrations/1764700000000-photos.js';
+import { Consents1764900000000 } from './migrations/1764900000000-consents.js';
 
-export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo];
+export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo, MailLog];
 
 /** Listed explicitly (not globbed) so the same list works under tsx, vitest and a build. */
-export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000];
+export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Consents1764900000000];
 
 /**
  * Builds the SQLite data source. `database` is a file path, or ":memory:" in tests.

@@ -1,6 +1,7 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import { simpleParser, type ParsedMail } from 'mailparser';
 import request from 'supertest';
 import type { DataSource } from 'typeorm';
 import { createApp } from '../../server/app.js';
@@ -11,7 +12,9 @@ import type { Deps } from '../../server/deps.js';
 import { Patient } from '../../server/entities/patient.js';
 import { User, type Role } from '../../server/entities/user.js';
 import { createLogger } from '../../server/logger.js';
-import { startS3Fake, type RunningService } from '../../server/dev-services.js';
+import { startS3Fake, startSmtpFake, type RunningService } from '../../server/dev-services.js';
+import { createMailer } from '../../server/mail/outbox.js';
+import { createSmtpTransport } from '../../server/mail/transport.js';
 import { createObjectStore } from '../../server/storage/object-store.js';
 import { newId, nowIso } from '../../server/lib/time.js';
 
@@ -26,6 +29,13 @@ export interface TestApp {
   s3: RunningService;
   /** Stops the S3 fake and starts it again on the same port and directory (for fault tests). */
   restartS3(): Promise<void>;
+  /** The SMTP fake of this app; it writes each accepted message as an .eml file under `dataDir/mail`. */
+  smtp: RunningService | null;
+  stopSmtp(): Promise<void>;
+  /** Starts the SMTP fake again on the same port and directory. */
+  startSmtp(): Promise<void>;
+  /** Every message the SMTP fake accepted so far, oldest first, parsed with mailparser. */
+  mails(): Promise<ParsedMail[]>;
   close(): Promise<void>;
 }
 
@@ -35,10 +45,15 @@ export async function makeTestApp(env: Record<string, string> = {}, extra: Parti
   const db = await openDatabase(':memory:');
   const objectsDir = path.join(dataDir, 'objects');
   let s3 = await startS3Fake(objectsDir, 0, 'twinframe-test');
-  const config = loadConfig({ TWINFRAME_DATA_DIR: dataDir, S3_BUCKET: 'twinframe-test', S3_FAKE_PORT: String(s3.port), ...env });
+  const mailDir = path.join(dataDir, 'mail');
+  let smtp: RunningService | null = await startSmtpFake(mailDir, 0);
+  const config = loadConfig({ TWINFRAME_DATA_DIR: dataDir, S3_BUCKET: 'twinframe-test', S3_FAKE_PORT: String(s3.port), SMTP_FAKE_PORT: String(smtp.port), ...env });
   const storage = createObjectStore(config.s3);
   await storage.ensureBucket();
-  const deps: Deps = { db, config, logger: createLogger('silent'), storage, ...extra };
+  const logger = createLogger('silent');
+  // Not started: tests drive the outbox with kick()/runOnce()/idle() so nothing polls behind their back.
+  const mailer = createMailer({ db, storage, transport: createSmtpTransport(config.smtp), from: config.smtp.from, logger });
+  const deps: Deps = { db, config, logger, storage, mailer, ...extra };
   const app = createApp(deps);
   const t: TestApp = {
     app,
@@ -52,7 +67,25 @@ export async function makeTestApp(env: Record<string, string> = {}, extra: Parti
       s3 = await startS3Fake(objectsDir, config.s3.fakePort, 'twinframe-test');
       t.s3 = s3;
     },
+    smtp,
+    async stopSmtp() {
+      await smtp?.close();
+      smtp = null;
+      t.smtp = null;
+    },
+    async startSmtp() {
+      if (smtp) return;
+      smtp = await startSmtpFake(mailDir, config.smtp.port);
+      t.smtp = smtp;
+    },
+    async mails() {
+      if (!fs.existsSync(mailDir)) return [];
+      const files = fs.readdirSync(mailDir).filter((f) => f.endsWith('.eml')).sort();
+      return Promise.all(files.map(async (f) => simpleParser(await fs.promises.readFile(path.join(mailDir, f)))));
+    },
     async close() {
+      await deps.mailer.stop();
+      await smtp?.close();
       await db.destroy();
       await t.s3.close();
       fs.rmSync(dataDir, { recursive: true, force: true });

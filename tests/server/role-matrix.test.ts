@@ -30,6 +30,9 @@ export const EXPECTED: Record<string, Who[]> = {
   'GET /api/visits/:id': STAFF,
   'PATCH /api/visits/:id': STAFF,
   'GET /api/clinic-day': STAFF,
+  'GET /api/outbox': ['admin'],
+  'GET /api/outbox/:id': ['admin'],
+  'POST /api/outbox/:id/retry': ['admin'],
 };
 void CLINICAL;
 
