@@ -8,6 +8,7 @@ import type { Deps } from './deps.js';
 import { registerAuthRoutes } from './features/auth/auth.routes.js';
 import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
+import { registerPhotoRoutes } from './features/photos/photos.routes.js';
 import { registerUserRoutes } from './features/users/users.routes.js';
 import { registerVisitRoutes } from './features/visits/visits.routes.js';
 import { errorHandler } from './lib/error-handler.js';
@@ -26,6 +27,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerUserRoutes(r, deps);
   registerPatientRoutes(r, deps);
   registerVisitRoutes(r, deps);
+  registerPhotoRoutes(r, deps);
   registerOutboxRoutes(r, deps);
   return r;
 }

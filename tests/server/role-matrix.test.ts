@@ -33,6 +33,16 @@ export const EXPECTED: Record<string, Who[]> = {
   'GET /api/outbox': ['admin'],
   'GET /api/outbox/:id': ['admin'],
   'POST /api/outbox/:id/retry': ['admin'],
+  'POST /api/visits/:visitId/photos': CLINICAL,
+  'GET /api/visits/:visitId/photos': CLINICAL,
+  'GET /api/patients/:id/photos': CLINICAL,
+  'GET /api/photos/:id': CLINICAL,
+  'GET /api/photos/:id/file': CLINICAL,
+  'GET /api/shot-lists': CLINICAL,
+  'GET /api/shot-lists/:id': CLINICAL,
+  'POST /api/shot-lists': ['admin'],
+  'PATCH /api/shot-lists/:id': ['admin'],
+  'PUT /api/visits/:visitId/shot-list': CLINICAL,
 };
 void CLINICAL;
 
