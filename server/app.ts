@@ -6,6 +6,7 @@ import { pinoHttp } from 'pino-http';
 import { csrfProtection, installSessions } from './auth/session.js';
 import type { Deps } from './deps.js';
 import { registerAuthRoutes } from './features/auth/auth.routes.js';
+import { registerTemplateRoutes } from './features/consents/templates.routes.js';
 import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
 import { registerPhotoRoutes } from './features/photos/photos.routes.js';
@@ -29,6 +30,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerVisitRoutes(r, deps);
   registerPhotoRoutes(r, deps);
   registerOutboxRoutes(r, deps);
+  registerTemplateRoutes(r, deps);
   return r;
 }
 

@@ -2,6 +2,10 @@ import 'reflect-metadata';
 import path from 'node:path';
 import { DataSource } from 'typeorm';
 import { AuditEvent } from '../entities/audit-event.js';
+import { ConsentEvidence } from '../entities/consent-evidence.js';
+import { ConsentRecord } from '../entities/consent-record.js';
+import { ConsentTemplate } from '../entities/consent-template.js';
+import { HandoverSession } from '../entities/handover-session.js';
 import { LoginFailure } from '../entities/login-failure.js';
 import { MailLog } from '../entities/mail-log.js';
 import { Patient } from '../entities/patient.js';
@@ -14,7 +18,7 @@ import { Foundation1764600000000 } from './migrations/1764600000000-foundation.j
 import { Photos1764700000000 } from './migrations/1764700000000-photos.js';
 import { Consents1764900000000 } from './migrations/1764900000000-consents.js';
 
-export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo, MailLog];
+export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo, MailLog, ConsentTemplate, HandoverSession, ConsentRecord, ConsentEvidence];
 
 /** Listed explicitly (not globbed) so the same list works under tsx, vitest and a build. */
 export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Consents1764900000000];

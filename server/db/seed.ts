@@ -1,5 +1,6 @@
 import type { DataSource } from 'typeorm';
 import { hashPassword } from '../auth/passwords.js';
+import { insertDemoTemplates } from '../features/consents/demo-templates.js';
 import { Patient } from '../entities/patient.js';
 import { User, type Role } from '../entities/user.js';
 import { Visit, type VisitKind, type VisitStatus } from '../entities/visit.js';
@@ -62,6 +63,7 @@ export async function seedDemo(db: DataSource): Promise<boolean> {
     // One row per insert: a bulk insert on SQLite re-assigns the objects' string ids afterwards (TypeORM 1.1).
     for (const u of users) await tx.getRepository(User).insert(u);
     const practitioners = users.filter((u) => u.role === 'practitioner');
+    await insertDemoTemplates(tx, users.find((u) => u.role === 'admin')!.id, now);
 
     const patients = DEMO_PATIENTS.map(([firstName, lastName, dateOfBirth, email, phone], i) => ({
       id: newId(),
