@@ -4,7 +4,7 @@
  *
  * Coordinates are continuous pixel coordinates with (0, 0) at the image's top-left corner (pixel i covers [i, i+1)).
  */
-import sharp from 'sharp';
+import sharp, { type Sharp } from 'sharp';
 import { toAffine, umeyama, type AffineMatrix, type Point, type Similarity } from './umeyama.js';
 import { frameAnchors, type ViewDef } from './views.js';
 
@@ -69,7 +69,7 @@ export async function renderAligned(
   const cx1 = Math.min(W, Math.ceil(Math.max(...corners.map((p) => p[0])) + margin));
   const cy1 = Math.min(H, Math.ceil(Math.max(...corners.map((p) => p[1])) + margin));
 
-  const encode = (s: sharp.Sharp) => (format === 'webp' ? s.webp({ quality }) : s.jpeg({ quality, mozjpeg: false }));
+  const encode = (s: Sharp) => (format === 'webp' ? s.webp({ quality }) : s.jpeg({ quality, mozjpeg: false }));
   const blank = () =>
     encode(sharp({ create: { width: frame.width, height: frame.height, channels: 3, background: FRAME_BACKGROUND } })).toBuffer();
   if (cx1 - cx0 < 2 || cy1 - cy0 < 2) return { data: await blank(), width: frame.width, height: frame.height, format };
