@@ -33,6 +33,11 @@ function int(value: string | undefined, fallback: number): number {
   return Number.isInteger(n) ? n : fallback;
 }
 
+function positive(value: string | undefined, fallback: number): number {
+  const n = Number(value);
+  return value && Number.isFinite(n) && n > 0 ? n : fallback;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const dataDir = path.resolve(env.TWINFRAME_DATA_DIR ?? 'storage');
   const s3FakePort = int(env.S3_FAKE_PORT, 4569);
@@ -44,7 +49,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     demo: env.TWINFRAME_DEMO !== '0',
     startFakes: !externalS3 && env.TWINFRAME_FAKES !== '0',
     sessionSecret: env.SESSION_SECRET ?? 'twinframe-local-development-secret-change-me',
-    idleMinutes: int(env.TWINFRAME_IDLE_MINUTES, 15),
+    idleMinutes: positive(env.TWINFRAME_IDLE_MINUTES, 15),
     secureCookies: env.COOKIE_SECURE === '1',
     clinicName: env.TWINFRAME_CLINIC_NAME ?? 'Linden Row Aesthetics',
     clinicTimeZone: env.TWINFRAME_TIME_ZONE ?? 'Europe/London',

@@ -1,4 +1,4 @@
-import { useEffect } from 'react';
+import { useEffect, useRef } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { Navigate, NavLink, Outlet, useLocation, useNavigate } from 'react-router-dom';
 import { CalendarDays, LogOut, Users, UserCog, type LucideIcon } from 'lucide-react';
@@ -27,13 +27,20 @@ export function AppShell() {
 
   useEffect(
     () =>
-      onSessionEnded((code) => {
+      // Inside the shell someone was signed in, so any 401 means their session has ended.
+      onSessionEnded(() => {
         qc.clear();
         qc.setQueryData(authKeys.me(), null);
-        navigate('/sign-in', { replace: true, state: { from: location.pathname + location.search, reason: code } });
+        navigate('/sign-in', { replace: true, state: { from: location.pathname + location.search, reason: 'SESSION_ENDED' } });
       }),
     [qc, navigate, location.pathname, location.search],
   );
+
+  useIdleLogoff(me?.idleMinutes, () => {
+    // Leave first: the shell unmounts once signed out, and with it any per-call mutation callbacks.
+    navigate('/sign-in', { replace: true, state: { from: location.pathname + location.search, reason: 'SESSION_ENDED' } });
+    logout.mutate();
+  });
 
   if (isPending) return <Spinner label="Opening Twinframe" />;
   if (!me) return <Navigate to="/sign-in" replace state={{ from: location.pathname + location.search }} />;
@@ -61,7 +68,10 @@ export function AppShell() {
               </NavLink>
             ))}
           </nav>
-          <UserMenu me={me} onSignOut={() => logout.mutate(undefined, { onSettled: () => navigate('/sign-in', { replace: true }) })} busy={logout.isPending} />
+          <UserMenu me={me} onSignOut={() => {
+              navigate('/sign-in', { replace: true });
+              logout.mutate();
+            }} busy={logout.isPending} />
         </div>
       </header>
       <main className="mx-auto max-w-6xl px-4 py-6">
@@ -69,6 +79,26 @@ export function AppShell() {
       </main>
     </div>
   );
+}
+
+/** Signs out after the idle time without a touch, click or key, so an unattended tablet shows no patient data. */
+function useIdleLogoff(minutes: number | undefined, onIdle: () => void) {
+  const onIdleRef = useRef(onIdle);
+  onIdleRef.current = onIdle;
+  useEffect(() => {
+    if (!minutes) return;
+    let timer = window.setTimeout(() => onIdleRef.current(), minutes * 60_000);
+    const reset = () => {
+      window.clearTimeout(timer);
+      timer = window.setTimeout(() => onIdleRef.current(), minutes * 60_000);
+    };
+    const events = ['pointerdown', 'keydown', 'wheel', 'touchstart'] as const;
+    for (const e of events) window.addEventListener(e, reset, { passive: true });
+    return () => {
+      window.clearTimeout(timer);
+      for (const e of events) window.removeEventListener(e, reset);
+    };
+  }, [minutes]);
 }
 
 function UserMenu({ me, onSignOut, busy }: { me: Me; onSignOut: () => void; busy: boolean }) {

@@ -83,3 +83,29 @@ describe.skipIf(!browserAvailable)('foundation in Chromium at tablet size', () =
     await context.close();
   });
 });
+
+describe.skipIf(!browserAvailable)('automatic logoff', () => {
+  let app: RunningApp;
+  let browser: Browser;
+  beforeAll(async () => {
+    // 0.05 minutes = 3 seconds of inactivity (HIPAA 45 CFR 164.312(a)(2)(iii): automatic logoff).
+    app = await startServer({ TWINFRAME_IDLE_MINUTES: '0.05' });
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await app?.stop();
+  });
+
+  it('clears the screen and asks for a new sign-in after the idle time', async () => {
+    const { context, page } = await newTabletPage(browser);
+    const u = demoUser('practitioner');
+    await signIn(page, app.url, u.email, u.password);
+    await page.getByRole('heading', { name: 'Clinic day' }).waitFor();
+    await page.getByText('You were signed out after a period without activity').waitFor({ timeout: 15_000 });
+    expect(page.url()).toContain('/sign-in');
+    const status = await page.evaluate(async () => (await fetch('/api/patients')).status);
+    expect(status).toBe(401);
+    await context.close();
+  });
+});

@@ -7,7 +7,10 @@ import { HttpError } from '../../lib/errors.js';
 import { validate } from '../../lib/validate.js';
 import { loginSchema } from './auth.schemas.js';
 
-export function registerAuthRoutes(r: Router, { db }: Deps): void {
+export function registerAuthRoutes(r: Router, { db, config }: Deps): void {
+  /** The signed-in user, with the idle timeout so the client can clear the screen on time too. */
+  const me = (user: Express.User) => ({ ...user, idleMinutes: config.idleMinutes });
+
   r.get('/api/auth/csrf', (req, res) => {
     res.json({ token: csrf.generateToken(req) });
   });
@@ -19,7 +22,7 @@ export function registerAuthRoutes(r: Router, { db }: Deps): void {
       req.login(user, (loginErr) => {
         if (loginErr) return next(loginErr);
         audit(db, req, { action: 'auth.login' })
-          .then(() => res.json(user))
+          .then(() => res.json(me(user)))
           .catch(next);
       });
     })(req, res, next);
@@ -34,6 +37,6 @@ export function registerAuthRoutes(r: Router, { db }: Deps): void {
   });
 
   r.get('/api/auth/me', allow(...STAFF), (req, res) => {
-    res.json(req.user);
+    res.json(me(req.user!));
   });
 }

@@ -5,4 +5,6 @@ export interface Me {
   email: string;
   name: string;
   role: Role;
+  /** Minutes without activity before Twinframe signs out (automatic logoff). */
+  idleMinutes?: number;
 }
