@@ -85,11 +85,10 @@ export function registerPhotoRoutes(r: Router, deps: Deps): void {
   const photos = db.getRepository(Photo);
   const visits = db.getRepository(Visit);
 
-  const uploadParams = validate({ params: visitParams });
-  const uploadFields = validate({ body: uploadPhotoFieldsSchema });
-  r.post('/api/visits/:visitId/photos', allow(...CLINICAL), uploadParams, receivePhoto, uploadFields, async (req: Request, res) => {
-    const { params } = parsed(req, uploadParams);
-    const { body } = parsed(req, uploadFields);
+  // The form fields arrive inside the multipart body, so validation follows multer.
+  const uploadForm = validate({ params: visitParams, body: uploadPhotoFieldsSchema });
+  r.post('/api/visits/:visitId/photos', allow(...CLINICAL), receivePhoto, uploadForm, async (req: Request, res) => {
+    const { params, body } = parsed(req, uploadForm);
     const user = currentUser(req);
     const visit = await visits.findOneBy({ id: params.visitId });
     if (!visit) throw notFound('Visit');
