@@ -46,7 +46,7 @@ export async function photoLikeJpeg(width: number, height: number, seed = 0): Pr
     <ellipse cx="${width / 2}" cy="${height / 2}" rx="${width / 4}" ry="${height / 3}" fill="hsl(20,45%,${55 + (seed % 5) * 3}%)"/>
   </svg>`;
   const base = await sharp(Buffer.from(svg)).removeAlpha().raw().toBuffer();
-  const noise = await sharp({ create: { width, height, channels: 3, noise: { type: 'gaussian', mean: 0, sigma: 5 } } }).raw().toBuffer();
+  const noise = await sharp({ create: { width, height, channels: 3, background: '#000', noise: { type: 'gaussian', mean: 0, sigma: 5 } } }).raw().toBuffer();
   return sharp(base, { raw: { width, height, channels: 3 } })
     .composite([{ input: noise, raw: { width, height, channels: 3 }, blend: 'add' }])
     .jpeg({ quality: 90 })
