@@ -1,36 +1,25 @@
 import { createBrowserRouter, Navigate } from 'react-router-dom';
 import { SignInPage } from '../features/auth/components/sign-in-page';
-import { PatientsPage } from '../features/patients/components/patients-page';
-import { UsersPage } from '../features/users/components/users-page';
-import { ClinicDayPage } from '../features/visits/components/clinic-day';
-import { RequireRole, useCurrentUser } from './require-role';
-import { PatientLayout, PatientOverview } from './routes/patient';
-import { VisitRoute } from './routes/visit';
 import { AppShell } from './shell';
 
-function UsersRoute() {
-  const me = useCurrentUser();
-  return (
-    <RequireRole roles={['admin']}>
-      <UsersPage currentUserId={me.id} />
-    </RequireRole>
-  );
-}
-
+/**
+ * Routes. The sign-in page and the shell are in the first bundle; every screen behind them is loaded
+ * on demand (`lazy`), so the first screen stays small on a tablet.
+ */
 export const router = createBrowserRouter([
   { path: '/sign-in', element: <SignInPage /> },
   {
     element: <AppShell />,
     children: [
-      { index: true, element: <ClinicDayPage /> },
-      { path: 'patients', element: <PatientsPage /> },
+      { index: true, lazy: () => import('../features/visits/components/clinic-day').then((m) => ({ Component: m.ClinicDayPage })) },
+      { path: 'patients', lazy: () => import('../features/patients/components/patients-page').then((m) => ({ Component: m.PatientsPage })) },
       {
         path: 'patients/:patientId',
-        element: <PatientLayout />,
-        children: [{ index: true, element: <PatientOverview /> }],
+        lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientLayout })),
+        children: [{ index: true, lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientOverview })) }],
       },
-      { path: 'visits/:visitId', element: <VisitRoute /> },
-      { path: 'admin/users', element: <UsersRoute /> },
+      { path: 'visits/:visitId', lazy: () => import('./routes/visit').then((m) => ({ Component: m.VisitRoute })) },
+      { path: 'admin/users', lazy: () => import('./routes/admin').then((m) => ({ Component: m.UsersRoute })) },
       { path: '*', element: <Navigate to="/" replace /> },
     ],
   },

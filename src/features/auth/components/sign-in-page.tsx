@@ -1,7 +1,6 @@
-import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import { useLocation, useNavigate } from 'react-router-dom';
-import { loginSchema, type LoginInput } from '../../../../server/features/auth/auth.schemas';
+import type { LoginInput } from '../../../../server/features/auth/auth.schemas';
 import { Button } from '../../../components/ui/button';
 import { Field, Input } from '../../../components/ui/field';
 import { Logo } from '../../../components/ui/logo';
@@ -14,7 +13,8 @@ export function SignInPage() {
   const navigate = useNavigate();
   const location = useLocation();
   const state = location.state as { from?: string; reason?: string } | null;
-  const { register, handleSubmit, formState } = useForm<LoginInput>({ resolver: zodResolver(loginSchema), defaultValues: { email: '', password: '' } });
+  // Plain rules here (not the zod schema) keep the validation library out of the first bundle.
+  const { register, handleSubmit, formState } = useForm<LoginInput>({ defaultValues: { email: '', password: '' } });
 
   const onSubmit = handleSubmit((values) =>
     login.mutate(values, { onSuccess: () => navigate(state?.from && state.from !== '/sign-in' ? state.from : '/', { replace: true }) }),
@@ -36,10 +36,10 @@ export function SignInPage() {
           {state?.reason === 'SESSION_ENDED' && <Notice tone="warn">You were signed out after a period without activity. Please sign in again.</Notice>}
           {error && <Notice tone="danger">{error}</Notice>}
           <Field label="E-mail" error={formState.errors.email?.message}>
-            {(p) => <Input {...p} type="email" autoComplete="username" inputMode="email" autoFocus {...register('email')} />}
+            {(p) => <Input {...p} type="email" autoComplete="username" inputMode="email" autoFocus {...register('email', { validate: (v) => v.trim() !== '' || 'Enter your e-mail.' })} />}
           </Field>
           <Field label="Password" error={formState.errors.password?.message}>
-            {(p) => <Input {...p} type="password" autoComplete="current-password" {...register('password')} />}
+            {(p) => <Input {...p} type="password" autoComplete="current-password" {...register('password', { required: 'Enter your password.' })} />}
           </Field>
           <Button type="submit" variant="primary" size="lg" className="w-full" busy={login.isPending}>
             Sign in
