@@ -63,7 +63,8 @@ export async function makeTestApp(env: Record<string, string> = {}, extra: Parti
     dataDir,
     s3,
     async restartS3() {
-      await t.s3.close();
+      // A test may already have stopped it with `t.s3.close()` to simulate an outage.
+      await t.s3.close().catch(() => undefined);
       s3 = await startS3Fake(objectsDir, config.s3.fakePort, 'twinframe-test');
       t.s3 = s3;
     },
