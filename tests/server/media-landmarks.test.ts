@@ -4,7 +4,6 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { checkLandmarks } from '../../server/media/landmark-input.js';
 import { detectAllLandmarks, detectLandmarks, type LandmarkDetection } from '../../server/media/landmarks.js';
 import { eyeCentres } from '../../server/media/measurements.js';
-import type { Point } from '../../server/media/umeyama.js';
 import { VIEWS } from '../../server/media/views.js';
 import { renderSyntheticFace } from '../fixtures/synthetic-face.js';
 
@@ -73,7 +72,7 @@ describe('automatic landmarks (real model)', () => {
 describe('landmark input check (used by the routes)', () => {
   const image = { width: 800, height: 1000 };
   const frontal = VIEWS['frontal-rest'];
-  const good = (): Point[] => Array.from({ length: 68 }, (_, i) => [100 + i * 5, 200 + (i % 10) * 20] as Point);
+  const good = (): [number, number][] => Array.from({ length: 68 }, (_, i) => [100 + i * 5, 200 + (i % 10) * 20] as [number, number]);
 
   it('accepts a full set and reads the view anchors from it', () => {
     const res = checkLandmarks({ points: good() }, image, frontal);
