@@ -182,6 +182,8 @@ export interface IngestInput {
   uploadedById: string;
   /** The request, for the access log; null for seeding. */
   req: Request | null;
+  /** Run the steps after storing (landmarks…); default true. The benchmark turns them off to time the pipeline alone. */
+  afterStore?: boolean;
 }
 
 export interface IngestResult {
@@ -271,7 +273,10 @@ export async function ingestPhoto(deps: PipelineDeps, input: IngestInput): Promi
   deps.logger.info({ photoId: id, visitId: photo.visitId, view: photo.viewKey, replaced }, 'photo stored');
 
   const displayJpeg = files.find((f) => f.variant === 'display' && f.format === 'jpeg')!;
-  await runAfterPhotoStored({ deps, photo, display: { raw: rendered.display.data, width: rendered.display.width, height: rendered.display.height, channels: 3, jpeg: displayJpeg.data } });
+  if (input.afterStore !== false) {
+    const { data, width, height } = rendered.display;
+    await runAfterPhotoStored({ deps, photo, display: { raw: data, width, height, channels: 3, jpeg: displayJpeg.data } });
+  }
   return { photo, created: true };
 }
 
