@@ -10,6 +10,8 @@ import { registerTemplateRoutes } from './features/consents/templates.routes.js'
 import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
 import { registerPhotoRoutes } from './features/photos/photos.routes.js';
+import { registerProductRoutes } from './features/treatments/products.routes.js';
+import { registerTreatmentRoutes } from './features/treatments/treatments.routes.js';
 import { registerUserRoutes } from './features/users/users.routes.js';
 import { registerVisitRoutes } from './features/visits/visits.routes.js';
 import { errorHandler } from './lib/error-handler.js';
@@ -31,6 +33,8 @@ export function buildApiRouter(deps: Deps): Router {
   registerPhotoRoutes(r, deps);
   registerOutboxRoutes(r, deps);
   registerTemplateRoutes(r, deps);
+  registerProductRoutes(r, deps);
+  registerTreatmentRoutes(r, deps);
   return r;
 }
 

@@ -25,8 +25,29 @@ export interface Config {
   smtp: { host: string; port: number; from: string; fakePort: number; secure: boolean; user?: string; pass?: string };
   /** How long a hand-over stays open before the device must go back to staff. */
   handoverMinutes: number;
+  /** Treatment record and reminder settings. */
+  treatments: TreatmentSettings;
   logLevel: string;
 }
+
+/**
+ * Defaults: review 14 days after treatment (clinics review at 2–4 weeks), maintenance 6 months (HA lip filler
+ * typically lasts about 6–9 months), a session above 2 mL of filler warns (FACTS 17, common practice).
+ */
+export interface TreatmentSettings {
+  /** Days from treatment to the review reminder, 14–28. */
+  reviewDays: number;
+  /** Months from treatment to the maintenance reminder, 3–12. */
+  maintenanceMonths: number;
+  /** A session's filler total above this many mL warns. */
+  highVolumeMl: number;
+  /** A lot expiring within this many days of use warns. */
+  lotWarnDays: number;
+  /** Wall-clock hour (clinic time zone) from which a reminder due that day is sent. */
+  reminderHour: number;
+}
+
+const clamp = (n: number, lo: number, hi: number) => Math.min(hi, Math.max(lo, n));
 
 function int(value: string | undefined, fallback: number): number {
   const n = value === undefined || value === '' ? NaN : Number(value);
@@ -72,6 +93,13 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
       pass: env.SMTP_PASS || undefined,
     },
     handoverMinutes: int(env.TWINFRAME_HANDOVER_MINUTES, 30),
+    treatments: {
+      reviewDays: clamp(int(env.TWINFRAME_REVIEW_DAYS, 14), 14, 28),
+      maintenanceMonths: clamp(int(env.TWINFRAME_MAINTENANCE_MONTHS, 6), 3, 12),
+      highVolumeMl: positive(env.TWINFRAME_HIGH_VOLUME_ML, 2),
+      lotWarnDays: clamp(int(env.TWINFRAME_LOT_WARN_DAYS, 30), 0, 365),
+      reminderHour: clamp(int(env.TWINFRAME_REMINDER_HOUR, 9), 0, 23),
+    },
     logLevel: env.LOG_LEVEL ?? 'info',
   };
 }

@@ -10,6 +10,11 @@ import { LoginFailure } from '../entities/login-failure.js';
 import { MailLog } from '../entities/mail-log.js';
 import { Patient } from '../entities/patient.js';
 import { Photo } from '../entities/photo.js';
+import { Product } from '../entities/product.js';
+import { Consultation } from '../entities/consultation.js';
+import { ReferencePicture } from '../entities/reference-picture.js';
+import { Reminder } from '../entities/reminder.js';
+import { Treatment, TreatmentDose, TreatmentLine } from '../entities/treatment.js';
 import { Session } from '../entities/session.js';
 import { ShotList, ShotListView } from '../entities/shot-list.js';
 import { User } from '../entities/user.js';
@@ -17,11 +22,12 @@ import { Visit } from '../entities/visit.js';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation.js';
 import { Photos1764700000000 } from './migrations/1764700000000-photos.js';
 import { Consents1764900000000 } from './migrations/1764900000000-consents.js';
+import { Treatments1765000000000 } from './migrations/1765000000000-treatments.js';
 
-export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo, MailLog, ConsentTemplate, HandoverSession, ConsentRecord, ConsentEvidence];
+export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo, MailLog, ConsentTemplate, HandoverSession, ConsentRecord, ConsentEvidence, Product, Consultation, Treatment, TreatmentLine, TreatmentDose, Reminder, ReferencePicture];
 
 /** Listed explicitly (not globbed) so the same list works under tsx, vitest and a build. */
-export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Consents1764900000000];
+export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Consents1764900000000, Treatments1765000000000];
 
 /**
  * Builds the SQLite data source. `database` is a file path, or ":memory:" in tests.

@@ -1,6 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { hashPassword } from '../auth/passwords.js';
 import { insertDemoTemplates } from '../features/consents/demo-templates.js';
+import { insertDemoProducts } from '../features/treatments/demo-products.js';
 import { Patient } from '../entities/patient.js';
 import { User, type Role } from '../entities/user.js';
 import { Visit, type VisitKind, type VisitStatus } from '../entities/visit.js';
@@ -64,6 +65,7 @@ export async function seedDemo(db: DataSource): Promise<boolean> {
     for (const u of users) await tx.getRepository(User).insert(u);
     const practitioners = users.filter((u) => u.role === 'practitioner');
     await insertDemoTemplates(tx, users.find((u) => u.role === 'admin')!.id, now);
+    await insertDemoProducts(tx, now);
 
     const patients = DEMO_PATIENTS.map(([firstName, lastName, dateOfBirth, email, phone], i) => ({
       id: newId(),

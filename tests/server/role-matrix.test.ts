@@ -51,6 +51,16 @@ export const EXPECTED: Record<string, Who[]> = {
   'POST /api/shot-lists': ['admin'],
   'PATCH /api/shot-lists/:id': ['admin'],
   'PUT /api/visits/:visitId/shot-list': CLINICAL,
+  'GET /api/products': CLINICAL,
+  'POST /api/products': ['admin'],
+  'PATCH /api/products/:id': ['admin'],
+  'GET /api/visits/:id/treatment': CLINICAL,
+  'PUT /api/visits/:id/treatment': CLINICAL,
+  'GET /api/patients/:id/treatments': CLINICAL,
+  'GET /api/visits/:id/screening': CLINICAL,
+  'POST /api/visits/:id/screening/acknowledge': CLINICAL,
+  'GET /api/visits/:id/consultation': CLINICAL,
+  'PUT /api/visits/:id/consultation': CLINICAL,
 };
 void CLINICAL;
 
