@@ -1,0 +1,40 @@
+import { Column, Entity, PrimaryColumn } from 'typeorm';
+
+/** The clinic's own settings: a single row (id "clinic"), edited by admins. */
+@Entity('clinic_settings')
+export class ClinicSettings {
+  @PrimaryColumn('varchar', { length: 16 })
+  id: string;
+
+  @Column('varchar', { length: 120 })
+  clinicName: string;
+
+  /** IANA time zone, e.g. "Europe/London". */
+  @Column('varchar', { length: 64 })
+  timeZone: string;
+
+  @Column('integer')
+  idleMinutes: number;
+
+  @Column('integer')
+  reviewReminderDays: number;
+
+  @Column('integer')
+  maintenanceReminderMonths: number;
+
+  /** Clinical records are kept at least this many years after the last visit before erasure is allowed. */
+  @Column('integer')
+  retentionYears: number;
+
+  @Column('varchar', { length: 80 })
+  watermarkText: string;
+
+  @Column('varchar', { length: 120 })
+  showcaseCaption: string;
+
+  @Column('varchar', { length: 30 })
+  updatedAt: string;
+
+  @Column('varchar', { length: 36, nullable: true })
+  updatedById: string | null;
+}

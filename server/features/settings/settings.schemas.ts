@@ -1,0 +1,34 @@
+import { z } from 'zod';
+
+const isTimeZone = (tz: string) => {
+  try {
+    new Intl.DateTimeFormat('en-GB', { timeZone: tz });
+    return true;
+  } catch {
+    return false;
+  }
+};
+
+const printable = (max: number) =>
+  z
+    .string()
+    .trim()
+    .min(1, 'Enter a value.')
+    .max(max, `Use at most ${max} characters.`)
+    .refine((s) => !/[\u0000-\u001f\u007f]/.test(s), 'Use printable characters only.');
+
+export const settingsUpdateSchema = z
+  .object({
+    clinicName: printable(120),
+    timeZone: z.string().refine(isTimeZone, 'Not a known time zone (use a name like Europe/London).'),
+    idleMinutes: z.number().int().min(2, 'At least 2 minutes.').max(60, 'At most 60 minutes: an unattended tablet must sign out.'),
+    reviewReminderDays: z.number().int().min(14, 'Reviews are usually 2–4 weeks after treatment (14–28 days).').max(28, 'Reviews are usually 2–4 weeks after treatment (14–28 days).'),
+    maintenanceReminderMonths: z.number().int().min(3, 'At least 3 months.').max(18, 'At most 18 months.'),
+    retentionYears: z.number().int().min(0).max(100),
+    watermarkText: printable(80),
+    showcaseCaption: printable(120),
+  })
+  .partial()
+  .strict();
+
+export type SettingsUpdate = z.infer<typeof settingsUpdateSchema>;
