@@ -10,11 +10,24 @@ import { frameAnchors, type ViewDef } from './views.js';
 
 export type AlignedFormat = 'jpeg' | 'webp';
 
-export interface AlignResult {
+export interface RenderOptions {
+  /** Encoded output; the first is `data`, every one is in `encoded`. Default JPEG. */
+  formats?: AlignedFormat[];
+  quality?: number;
+  /** Also hand back the frame's raw RGB pixels (for quality checks) without decoding an encoded copy. */
+  raw?: boolean;
+}
+
+export interface Rendered {
   data: Buffer;
   format: AlignedFormat;
+  encoded: { format: AlignedFormat; data: Buffer }[];
   width: number;
   height: number;
+  raw?: { data: Buffer; width: number; height: number; channels: 3 };
+}
+
+export interface AlignResult extends Rendered {
   /** Photo → frame, as fitted from the anchors. */
   transform: Similarity;
   /** The same as a row-major 2×3 matrix, as stored on the photo. */
@@ -32,7 +45,7 @@ export function viewTransform(view: ViewDef, anchors: readonly Point[]): Similar
 }
 
 /**
- * Resamples `image` (auto-oriented) by `transform` into a `frame` sized output, encoded as JPEG or WebP.
+ * Resamples `image` (auto-oriented) by `transform` into a `frame` sized output, encoded as JPEG and/or WebP.
  *
  * Downscaling is done first with a Lanczos resize (which filters, unlike the affine's interpolator, so detail does
  * not alias), then the remaining rotation with a bicubic affine. Only the part of the photo that lands in the frame is
@@ -43,9 +56,9 @@ export async function renderAligned(
   image: Buffer,
   transform: Similarity,
   frame: { width: number; height: number },
-  opts: { format?: AlignedFormat; quality?: number } = {},
-): Promise<{ data: Buffer; width: number; height: number; format: AlignedFormat }> {
-  const format = opts.format ?? 'jpeg';
+  opts: RenderOptions = {},
+): Promise<Rendered> {
+  const formats = opts.formats?.length ? opts.formats : (['jpeg'] as AlignedFormat[]);
   const quality = opts.quality ?? 88;
   const meta = await sharp(image, { failOn: 'error' }).metadata();
   const swap = (meta.orientation ?? 1) >= 5;
@@ -69,10 +82,18 @@ export async function renderAligned(
   const cx1 = Math.min(W, Math.ceil(Math.max(...corners.map((p) => p[0])) + margin));
   const cy1 = Math.min(H, Math.ceil(Math.max(...corners.map((p) => p[1])) + margin));
 
-  const encode = (s: Sharp) => (format === 'webp' ? s.webp({ quality }) : s.jpeg({ quality, mozjpeg: false }));
-  const blank = () =>
-    encode(sharp({ create: { width: frame.width, height: frame.height, channels: 3, background: FRAME_BACKGROUND } })).toBuffer();
-  if (cx1 - cx0 < 2 || cy1 - cy0 < 2) return { data: await blank(), width: frame.width, height: frame.height, format };
+  const finish = async (img: Sharp): Promise<Rendered> => {
+    const encoded = await Promise.all(
+      formats.map(async (format) => ({
+        format,
+        data: await (format === 'webp' ? img.clone().webp({ quality, effort: 2 }) : img.clone().jpeg({ quality })).toBuffer(),
+      })),
+    );
+    const raw = opts.raw ? { data: await img.clone().raw().toBuffer(), width: frame.width, height: frame.height, channels: 3 as const } : undefined;
+    return { data: encoded[0].data, format: encoded[0].format, encoded, width: frame.width, height: frame.height, ...(raw ? { raw } : {}) };
+  };
+  const blank = () => finish(sharp({ create: { width: frame.width, height: frame.height, channels: 3, background: FRAME_BACKGROUND } }));
+  if (cx1 - cx0 < 2 || cy1 - cy0 < 2) return blank();
 
   const cw = cx1 - cx0, ch = cy1 - cy0;
   let pipeline = sharp(image, { failOn: 'error' }).rotate().removeAlpha().extract({ left: cx0, top: cy0, width: cw, height: ch });
@@ -108,7 +129,7 @@ export async function renderAligned(
   // Frame pixel X sits at warped pixel X + ox; take the overlap and pad the rest with the background.
   const left = Math.max(0, ox), top = Math.max(0, oy);
   const right = Math.min(bw, ox + frame.width), bottom = Math.min(bh, oy + frame.height);
-  if (right - left < 1 || bottom - top < 1) return { data: await blank(), width: frame.width, height: frame.height, format };
+  if (right - left < 1 || bottom - top < 1) return blank();
   const out = sharp(warped.data, { raw: { width: bw, height: bh, channels } })
     .extract({ left, top, width: right - left, height: bottom - top })
     .extend({
@@ -118,12 +139,11 @@ export async function renderAligned(
       bottom: oy + frame.height - bottom,
       background: FRAME_BACKGROUND,
     });
-  const data = await encode(out).toBuffer();
-  return { data, width: frame.width, height: frame.height, format };
+  return finish(out);
 }
 
 /** Fits the view's transform from the anchors and renders the aligned photo in the view's standard frame. */
-export async function alignPhoto(image: Buffer, view: ViewDef, anchors: readonly Point[], opts: { format?: AlignedFormat; quality?: number } = {}): Promise<AlignResult> {
+export async function alignPhoto(image: Buffer, view: ViewDef, anchors: readonly Point[], opts: RenderOptions = {}): Promise<AlignResult> {
   const transform = viewTransform(view, anchors);
   const matrix = toAffine(transform);
   const targets = frameAnchors(view);

@@ -44,7 +44,7 @@ function lineAngle(a: Point, b: Point): number {
  * views whose two anchors form the horizontal reference).
  */
 export function estimatePose(view: ViewDef, points: Landmarks68 | null, anchors: readonly Point[] | null): Pose {
-  const isLips = view.key.startsWith('lips-');
+  const isLips = view.kind === 'lips';
   if (points && points.length === 68) {
     const eyes = eyeCentres(points);
     if (eyes && !isLips) {
@@ -70,7 +70,7 @@ export function estimatePose(view: ViewDef, points: Landmarks68 | null, anchors:
       return { roll: lineAngle(p48, p54), yaw: null, noseDrop: null, unitPx: Math.hypot(p54[0] - p48[0], p54[1] - p48[1]) };
     }
   }
-  if (anchors && anchors.length === 2 && (isLips || view.key.startsWith('frontal-'))) {
+  if (anchors && anchors.length === 2 && (isLips || (view.kind === 'face' && view.expectedYaw === 0))) {
     const [a, b] = anchors;
     return { roll: lineAngle(a, b), yaw: null, noseDrop: null, unitPx: Math.hypot(b[0] - a[0], b[1] - a[1]) };
   }

@@ -28,9 +28,13 @@ export interface AnchorDef {
   frame: Point;
 }
 
+/** How a view is aligned: the 68-point model on the eye centres, on the lip corners, or anchors placed by hand. */
+export type AnchorKind = 'face' | 'lips' | 'profile';
+
 export interface ViewDef {
-  key: ViewKey;
+  key: string;
   label: string;
+  kind: AnchorKind;
   /** Yaw the view asks for, degrees; positive shows the subject's left side (see pose.ts). */
   expectedYaw: number;
   /** Largest |yaw − expectedYaw| before the photo is flagged as not fitting its view. */
@@ -80,18 +84,31 @@ function sideAnchors(side: 'left' | 'right', noseAhead: number): readonly Anchor
 }
 
 export const VIEWS: Readonly<Record<ViewKey, ViewDef>> = {
-  'frontal-rest': { key: 'frontal-rest', label: 'Frontal, at rest', expectedYaw: 0, yawTolerance: 10, measured: true, frame: FRONTAL_FRAME, anchors: frontalAnchors },
-  'frontal-smile': { key: 'frontal-smile', label: 'Frontal, smiling', expectedYaw: 0, yawTolerance: 10, measured: false, frame: FRONTAL_FRAME, anchors: frontalAnchors },
-  'lips-rest': { key: 'lips-rest', label: 'Lips close-up, at rest', expectedYaw: 0, yawTolerance: 10, measured: true, frame: LIPS_FRAME, anchors: lipsAnchors },
-  'lips-pucker': { key: 'lips-pucker', label: 'Lips close-up, pucker', expectedYaw: 0, yawTolerance: 10, measured: false, frame: LIPS_FRAME, anchors: lipsAnchors },
-  'oblique-left': { key: 'oblique-left', label: 'Oblique left 45°', expectedYaw: 45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 200) },
-  'oblique-right': { key: 'oblique-right', label: 'Oblique right 45°', expectedYaw: -45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 200) },
-  'lateral-left': { key: 'lateral-left', label: 'Lateral left 90°', expectedYaw: 90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 300) },
-  'lateral-right': { key: 'lateral-right', label: 'Lateral right 90°', expectedYaw: -90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 300) },
+  'frontal-rest': { key: 'frontal-rest', kind: 'face', label: 'Frontal, at rest', expectedYaw: 0, yawTolerance: 10, measured: true, frame: FRONTAL_FRAME, anchors: frontalAnchors },
+  'frontal-smile': { key: 'frontal-smile', kind: 'face', label: 'Frontal, smiling', expectedYaw: 0, yawTolerance: 10, measured: false, frame: FRONTAL_FRAME, anchors: frontalAnchors },
+  'lips-rest': { key: 'lips-rest', kind: 'lips', label: 'Lips close-up, at rest', expectedYaw: 0, yawTolerance: 10, measured: true, frame: LIPS_FRAME, anchors: lipsAnchors },
+  'lips-pucker': { key: 'lips-pucker', kind: 'lips', label: 'Lips close-up, pucker', expectedYaw: 0, yawTolerance: 10, measured: false, frame: LIPS_FRAME, anchors: lipsAnchors },
+  'oblique-left': { key: 'oblique-left', kind: 'face', label: 'Oblique left 45°', expectedYaw: 45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 200) },
+  'oblique-right': { key: 'oblique-right', kind: 'face', label: 'Oblique right 45°', expectedYaw: -45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 200) },
+  'lateral-left': { key: 'lateral-left', kind: 'profile', label: 'Lateral left 90°', expectedYaw: 90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 300) },
+  'lateral-right': { key: 'lateral-right', kind: 'profile', label: 'Lateral right 90°', expectedYaw: -90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 300) },
 };
 
 export function isViewKey(v: string): v is ViewKey {
   return (VIEW_KEYS as readonly string[]).includes(v);
+}
+
+/**
+ * The alignment definition of a shot-list view. The built-in views keep their own (oblique views, marked "face" in the
+ * shot list because the model usually sees the face, still align on eye corner, nose tip and chin); a view an admin
+ * added borrows the definition of its kind: "face" the frontal one, "lips" the close-up, "profile" the lateral one of
+ * the side its key names (left unless the key says right).
+ */
+export function resolveView(key: string, kind: AnchorKind, label?: string): ViewDef {
+  if (isViewKey(key)) return VIEWS[key];
+  const base =
+    kind === 'lips' ? VIEWS['lips-rest'] : kind === 'profile' ? VIEWS[/right/.test(key) ? 'lateral-right' : 'lateral-left'] : VIEWS['frontal-rest'];
+  return { ...base, key, kind, label: label ?? key, measured: kind !== 'profile' && !/smile|pucker/.test(key) };
 }
 
 /** The view's anchors read from a full 68-point set (each the mean of its indices). */

@@ -54,7 +54,7 @@ describe('alignment', () => {
       const target: Point = [120 + r() * 360, 120 + r() * 460];
       const c = Math.cos(angle), sn = Math.sin(angle);
       const t = { scale, angle, translation: [target[0] - scale * (c * cx - sn * cy), target[1] - scale * (sn * cx + c * cy)] as Point };
-      const out = await renderAligned(img, t, { width: 600, height: 700 }, { format: 'webp', quality: 100 });
+      const out = await renderAligned(img, t, { width: 600, height: 700 }, { formats: ['webp'], quality: 100 });
       const { data, info } = await sharp(out.data).raw().toBuffer({ resolveWithObject: true });
       let sx = 0, sy = 0, sw = 0;
       for (let y = 0; y < info.height; y++) {
@@ -70,7 +70,7 @@ describe('alignment', () => {
   it('fills the frame beyond the photo with neutral grey and encodes JPEG or WebP', async () => {
     const face = await renderSyntheticFace();
     const t = { scale: 0.2, angle: 0, translation: [0, 0] as Point };
-    const out = await renderAligned(face.data, t, { width: 400, height: 300 }, { format: 'webp' });
+    const out = await renderAligned(face.data, t, { width: 400, height: 300 }, { formats: ['webp'] });
     const meta = await sharp(out.data).metadata();
     expect(meta.format).toBe('webp');
     expect([meta.width, meta.height]).toEqual([400, 300]);
