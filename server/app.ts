@@ -6,6 +6,8 @@ import { pinoHttp } from 'pino-http';
 import { csrfProtection, installSessions } from './auth/session.js';
 import type { Deps } from './deps.js';
 import { registerAuthRoutes } from './features/auth/auth.routes.js';
+import { registerCompareRoutes } from './features/compare/compare.routes.js';
+import { reviewLock } from './features/compare/review-lock.js';
 import { registerTemplateRoutes } from './features/consents/templates.routes.js';
 import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
@@ -31,6 +33,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerPatientRoutes(r, deps);
   registerVisitRoutes(r, deps);
   registerPhotoRoutes(r, deps);
+  registerCompareRoutes(r, deps);
   registerOutboxRoutes(r, deps);
   registerTemplateRoutes(r, deps);
   registerProductRoutes(r, deps);
@@ -82,6 +85,8 @@ export function createApp(deps: Deps, opts: { staticDir?: string } = {}): Expres
   app.use('/api', express.json({ limit: '256kb' }));
   app.locals.passport = installSessions(app, deps.db, deps.config);
   app.use('/api', csrfProtection);
+  // Review mode confines the whole API to one patient until staff confirm leaving it.
+  app.use('/api', reviewLock(deps.db));
 
   const apiRouter = buildApiRouter(deps);
   app.use(apiRouter);
