@@ -17,7 +17,7 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-const events = (where: Partial<AuditEvent>) => t.db.getRepository(AuditEvent).countBy(where);
+const events = (where: { action: string; targetId?: string; actorRole?: string }) => t.db.getRepository(AuditEvent).countBy(where);
 
 describe('access log', () => {
   it('records exactly one event per view of a clinical photo, for each role that may see it', async () => {
