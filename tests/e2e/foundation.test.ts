@@ -16,7 +16,7 @@ describe.skipIf(!browserAvailable)('foundation in Chromium at tablet size', () =
   });
 
   const expectedNav = {
-    admin: ['Clinic day', 'Patients', 'Users'],
+    admin: ['Clinic day', 'Patients', 'Admin'],
     practitioner: ['Clinic day', 'Patients'],
     coordinator: ['Clinic day', 'Patients'],
   } as const;
@@ -30,7 +30,7 @@ describe.skipIf(!browserAvailable)('foundation in Chromium at tablet size', () =
       const nav = page.getByRole('navigation', { name: 'Main' });
       const labels = (await nav.getByRole('link').allInnerTexts()).map((s) => s.trim());
       for (const label of expectedNav[role]) expect(labels).toContain(label);
-      if (role !== 'admin') expect(labels).not.toContain('Users');
+      if (role !== 'admin') expect(labels).not.toContain('Admin');
       await screenshot(page, `clinic-day-${role}-1024x768`);
       await context.close();
     });

@@ -1,5 +1,42 @@
+import { Link } from 'react-router-dom';
+import { ChevronRight, ScrollText, Settings, UserCog, type LucideIcon } from 'lucide-react';
+import { Card } from '../../components/ui/card';
+import { PageHeader } from '../../components/ui/page';
+import { AccessLogPage } from '../../features/access-log/components/access-log-page';
+import { SettingsPage } from '../../features/settings/components/settings-page';
 import { UsersPage } from '../../features/users/components/users-page';
 import { RequireRole, useCurrentUser } from '../require-role';
+
+/** The admin area's sections; each feature adds its own entry and route. */
+export const ADMIN_SECTIONS: { to: string; label: string; description: string; icon: LucideIcon }[] = [
+  { to: '/admin/users', label: 'Users', description: 'Staff sign-ins and roles, deactivation, password resets.', icon: UserCog },
+  { to: '/admin/access-log', label: 'Access log', description: 'Who saw or changed what, and when. Filter and export as CSV.', icon: ScrollText },
+  { to: '/admin/settings', label: 'Clinic settings', description: 'Clinic name and time zone, automatic sign-out, reminders, retention, watermark.', icon: Settings },
+];
+
+export function AdminHome() {
+  return (
+    <RequireRole roles={['admin']}>
+      <PageHeader title="Admin" subtitle="Clinic set-up, records governance and staff access." />
+      <div className="grid gap-3 md:grid-cols-2">
+        {ADMIN_SECTIONS.map((s) => (
+          <Link key={s.to} to={s.to} className="group">
+            <Card className="flex h-full items-center gap-4 px-5 py-4 transition-colors group-hover:border-line-strong group-hover:bg-paper-sunk/40">
+              <span className="grid size-11 shrink-0 place-items-center rounded-lg bg-paper-sunk text-ink">
+                <s.icon className="size-5" aria-hidden />
+              </span>
+              <span className="min-w-0 flex-1">
+                <span className="block font-semibold">{s.label}</span>
+                <span className="block text-sm text-ink-muted">{s.description}</span>
+              </span>
+              <ChevronRight className="size-5 text-ink-faint" aria-hidden />
+            </Card>
+          </Link>
+        ))}
+      </div>
+    </RequireRole>
+  );
+}
 
 export function UsersRoute() {
   const me = useCurrentUser();
@@ -9,3 +46,15 @@ export function UsersRoute() {
     </RequireRole>
   );
 }
+
+export const AccessLogRoute = () => (
+  <RequireRole roles={['admin']}>
+    <AccessLogPage />
+  </RequireRole>
+);
+
+export const SettingsRoute = () => (
+  <RequireRole roles={['admin']}>
+    <SettingsPage />
+  </RequireRole>
+);
