@@ -28,6 +28,10 @@ export class Patient {
   @Column('boolean', { default: false })
   archived: boolean;
 
+  /** Target upper:lower lip ratio as x in 1:x (1, 1.6, 2 or custom); null when none is chosen. A guide, not a treatment target. */
+  @Column('real', { nullable: true })
+  lipRatioTarget: number | null;
+
   @Column('varchar', { length: 30 })
   createdAt: string;
 

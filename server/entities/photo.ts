@@ -1,5 +1,8 @@
 import { Column, Entity, Index, JoinColumn, ManyToOne, PrimaryColumn, type Relation } from 'typeorm';
+import type { AlignmentState, StoredAlignment, StoredLandmarks, StoredQuality } from '../features/landmarks/landmarks.schemas.js';
 import type { PhotoFormat, PhotoState, PhotoVariantName } from '../features/photos/photos.schemas.js';
+import type { LipMeasurements } from '../media/measurements.js';
+import type { Pose } from '../media/pose.js';
 import { Patient } from './patient.js';
 import { User } from './user.js';
 import { Visit } from './visit.js';
@@ -12,6 +15,8 @@ export interface PhotoVariant {
   width: number;
   height: number;
   bytes: number;
+  /** Set on variants rewritten in place (the aligned photo after a landmark edit); part of the URL and ETag. */
+  rev?: number;
 }
 
 /**
@@ -93,4 +98,34 @@ export class Photo {
 
   @Column('simple-json')
   variants: PhotoVariant[];
+
+  /** Landmarks and alignment; "aligning" rows are picked up again by the alignment worker after a restart. */
+  @Column('varchar', { length: 16, default: 'aligning' })
+  alignmentState: AlignmentState;
+
+  /** Why the photo needs landmarks placed by hand, in plain words. */
+  @Column('text', { nullable: true })
+  alignmentNote: string | null;
+
+  @Column('integer', { default: 0 })
+  alignmentAttempts: number;
+
+  @Column('simple-json', { nullable: true })
+  landmarks: StoredLandmarks | null;
+
+  /** Bumped on every landmark edit or reset, so a stale alignment run cannot overwrite a newer one. */
+  @Column('integer', { default: 0 })
+  landmarksRev: number;
+
+  @Column('simple-json', { nullable: true })
+  alignment: StoredAlignment | null;
+
+  @Column('simple-json', { nullable: true })
+  pose: Pose | null;
+
+  @Column('simple-json', { nullable: true })
+  quality: StoredQuality | null;
+
+  @Column('simple-json', { nullable: true })
+  measurements: LipMeasurements | null;
 }
