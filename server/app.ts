@@ -8,6 +8,8 @@ import type { Deps } from './deps.js';
 import { registerAuthRoutes } from './features/auth/auth.routes.js';
 import { registerCompareRoutes } from './features/compare/compare.routes.js';
 import { reviewLock } from './features/compare/review-lock.js';
+import { registerConsentRoutes } from './features/consents/consents.routes.js';
+import { registerHandoverRoutes } from './features/consents/handover.routes.js';
 import { registerTemplateRoutes } from './features/consents/templates.routes.js';
 import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
@@ -36,6 +38,8 @@ export function buildApiRouter(deps: Deps): Router {
   registerCompareRoutes(r, deps);
   registerOutboxRoutes(r, deps);
   registerTemplateRoutes(r, deps);
+  registerHandoverRoutes(r, deps);
+  registerConsentRoutes(r, deps);
   registerProductRoutes(r, deps);
   registerTreatmentRoutes(r, deps);
   return r;

@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Router } from 'express';
-import { Client, makeTestApp, signedIn, type TestApp } from '../helpers/app.js';
+import { insertDemoTemplates } from '../../server/features/consents/demo-templates.js';
+import { Client, createPatient, makeTestApp, signedIn, type TestApp } from '../helpers/app.js';
 
 /**
  * Who may call each API route. `public` routes answer anyone; every other route must answer
@@ -41,6 +42,21 @@ export const EXPECTED: Record<string, Who[]> = {
   'POST /api/consent-templates/:id/versions': ['admin'],
   'POST /api/consent-templates/:id/publish': ['admin'],
   'POST /api/consent-templates/:id/retire': ['admin'],
+  'POST /api/handovers': STAFF,
+  'GET /api/handovers/:id': STAFF,
+  'POST /api/handovers/:id/cancel': STAFF,
+  'POST /api/handover/claim': ['public'],
+  'GET /api/handover': ['handover'],
+  'POST /api/handover/forms/:templateId/shown': ['handover'],
+  'POST /api/handover/forms/:templateId/decline': ['handover'],
+  'POST /api/handover/forms/:templateId/sign': ['handover'],
+  'GET /api/patients/:id/consents': STAFF,
+  'GET /api/consents/:id': STAFF,
+  'GET /api/consents/:id/pdf': STAFF,
+  'GET /api/consents/:id/verify': STAFF,
+  'POST /api/consents/:id/withdraw': STAFF,
+  'POST /api/consents/:id/acknowledge-flags': CLINICAL,
+  'GET /api/visits/:id/open-items': STAFF,
   'POST /api/visits/:visitId/photos': CLINICAL,
   'GET /api/visits/:visitId/photos': CLINICAL,
   'GET /api/patients/:id/photos': CLINICAL,
@@ -90,6 +106,14 @@ beforeAll(async () => {
   clients.anonymous = new Client(t.app);
   await clients.anonymous.refreshCsrf();
   for (const role of ['admin', 'practitioner', 'coordinator'] as const) clients[role] = (await signedIn(t, role)).client;
+  // A device in hand-over mode: a practitioner starts a hand-over on "this device", which ends the staff sign-in there.
+  const { client: tablet, user } = await signedIn(t, 'practitioner');
+  const [form] = await insertDemoTemplates(t.db, user.id, new Date().toISOString());
+  const patient = await createPatient(t.db);
+  const started = await tablet.post('/api/handovers').send({ patientId: patient.id, templateIds: [form.id], mode: 'this-device' });
+  if (started.status !== 201) throw new Error(`hand-over failed: ${JSON.stringify(started.body)}`);
+  tablet.csrf = started.body.csrfToken;
+  clients.handover = tablet;
 });
 afterAll(() => t.close());
 
@@ -110,7 +134,7 @@ describe('role matrix', () => {
       if (key === 'POST /api/auth/logout' || key === 'POST /api/auth/login') continue; // would end or change the test sessions; covered in auth tests
       const url = path.replace(/:[A-Za-z]+/g, FAKE_ID);
       const allowed = EXPECTED[key] ?? [];
-      for (const who of ['anonymous', 'admin', 'practitioner', 'coordinator'] as const) {
+      for (const who of ['anonymous', 'admin', 'practitioner', 'coordinator', 'handover'] as const) {
         const c = clients[who]!;
         const call = method === 'GET' ? c.get(url) : (c as unknown as Record<string, (u: string) => ReturnType<Client['post']>>)[method.toLowerCase()](url).send({});
         const res = await call;
