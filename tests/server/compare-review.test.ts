@@ -49,13 +49,14 @@ describe('review mode', () => {
     const c = await inReview();
     // Allowed: the reviewed patient, their photos and the staff member's own session.
     expect((await c.get(`/api/patients/${mine.patientId}`)).status).toBe(200);
-    expect((await c.get(`/api/patients/${mine.patientId}/photos`)).status).toBe(200);
+    expect((await c.get(`/api/patients/${mine.patientId}/timeline`)).status).toBe(200);
     expect((await c.get(`/api/photos/${mine.photoId}/file?variant=thumb`)).status).toBe(200);
     expect((await c.get('/api/auth/me')).status).toBe(200);
     // Refused: everything that could show someone else, or change anything.
     const refused = [
       await c.get(`/api/patients/${other.patientId}`),
-      await c.get(`/api/patients/${other.patientId}/photos`),
+      await c.get(`/api/patients/${other.patientId}/timeline`),
+      await c.get(`/api/photos/${mine.photoId}/file?variant=master`),
       await c.get(`/api/photos/${other.photoId}/file?variant=display`),
       await c.get(`/api/photos/${other.photoId}`),
       await c.get('/api/patients'),

@@ -62,6 +62,7 @@ export const EXPECTED: Record<string, Who[]> = {
   'GET /api/patients/:id/photos': CLINICAL,
   'GET /api/photos/:id': CLINICAL,
   'GET /api/photos/:id/file': CLINICAL,
+  'GET /api/patients/:id/timeline': CLINICAL,
   'POST /api/patients/:id/review': CLINICAL,
   'GET /api/review': STAFF,
   'POST /api/review/exit': STAFF,

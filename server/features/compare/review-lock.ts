@@ -32,7 +32,7 @@ const ALWAYS: { method: string; path: RegExp }[] = [
  * Reads of the reviewed patient that the review screen uses. The visit list is left out on purpose: it carries the
  * staff's visit notes, and the comparison payloads already carry each visit's date and kind.
  */
-const PATIENT_READ = new RegExp(`^/api/patients/(${UUID})(/(pairs|measurements|photos))?$`);
+const PATIENT_READ = new RegExp(`^/api/patients/(${UUID})(/(timeline|pairs|measurements))?$`);
 const PHOTO_READ = new RegExp(`^/api/photos/(${UUID})(/file)?$`);
 
 function refuse(): HttpError {
@@ -54,7 +54,8 @@ export function reviewLock(db: DataSource): RequestHandler {
     const patientRead = PATIENT_READ.exec(path);
     if (patientRead) return next(patientRead[1] === review.patientId ? undefined : refuse());
     const photoRead = PHOTO_READ.exec(path);
-    if (photoRead) {
+    // Screens show display-size photos; the full-resolution master is not for the patient's tablet.
+    if (photoRead && req.query.variant !== 'master') {
       photoOwner(db, photoRead[1]).then((owner) => next(owner === review.patientId ? undefined : refuse()), next);
       return;
     }
