@@ -33,6 +33,8 @@ export function photoView(p: Photo, extra: { visitStartsAt?: string; uploadedByN
     uploadedByName: extra.uploadedByName ?? p.uploadedBy?.name ?? null,
     sha256: p.sha256,
     sourceSha256: p.sourceSha256,
+    alignmentState: p.alignmentState,
+    alignmentNote: p.alignmentNote,
     ...(extra.visitStartsAt ? { visitStartsAt: extra.visitStartsAt } : {}),
     variants: p.variants.map((v) => ({
       variant: v.variant,
@@ -40,7 +42,7 @@ export function photoView(p: Photo, extra: { visitStartsAt?: string; uploadedByN
       width: v.width,
       height: v.height,
       bytes: v.bytes,
-      url: `/api/photos/${p.id}/file?variant=${v.variant}&format=${v.format}`,
+      url: `/api/photos/${p.id}/file?variant=${v.variant}&format=${v.format}${v.rev ? `&rev=${v.rev}` : ''}`,
     })),
   };
 }
@@ -157,7 +159,7 @@ export function registerPhotoRoutes(r: Router, deps: Deps): void {
       'Content-Type': format === 'jpeg' ? 'image/jpeg' : 'image/webp',
       // Each variant's bytes never change (a retake is a new photo), but the answer needs a signed-in clinician.
       'Cache-Control': 'private, max-age=31536000, immutable',
-      ETag: `"${photo.id}-${query.variant}-${format}"`,
+      ETag: `"${photo.id}-${query.variant}-${format}${stored.rev ? `-${stored.rev}` : ''}"`,
       'Content-Disposition': `inline; filename="${fileName(photo, ext, query.variant)}"`,
       ...(object.contentLength !== undefined ? { 'Content-Length': String(object.contentLength) } : {}),
     });

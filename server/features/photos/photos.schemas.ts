@@ -11,7 +11,8 @@ export type AnchorKind = (typeof ANCHOR_KINDS)[number];
 export const PHOTO_STATES = ['captured', 'replaced'] as const;
 export type PhotoState = (typeof PHOTO_STATES)[number];
 
-export const PHOTO_VARIANT_NAMES = ['master', 'display', 'thumb'] as const;
+/** `aligned`: resampled into the view's standard frame after landmarks (rewritten in place, so it carries a `rev`). */
+export const PHOTO_VARIANT_NAMES = ['master', 'display', 'thumb', 'aligned'] as const;
 export type PhotoVariantName = (typeof PHOTO_VARIANT_NAMES)[number];
 export const PHOTO_FORMATS = ['webp', 'jpeg'] as const;
 export type PhotoFormat = (typeof PHOTO_FORMATS)[number];
@@ -72,8 +73,10 @@ export const visitPhotosQuerySchema = z.object({ all: z.enum(['0', '1']).optiona
 
 export const photoFileQuerySchema = z
   .object({
-    variant: z.enum(PHOTO_VARIANT_NAMES, { message: 'Choose master, display or thumb.' }).default('display'),
+    variant: z.enum(PHOTO_VARIANT_NAMES, { message: 'Choose master, display, thumb or aligned.' }).default('display'),
     format: z.enum(PHOTO_FORMATS, { message: 'Choose webp or jpeg.' }).optional(),
+    /** Cache-buster of variants rewritten in place; the bytes served are always the current ones. */
+    rev: z.string().regex(/^\d{1,9}$/, 'Not a revision number.').optional(),
   })
   .strict();
 
