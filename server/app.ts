@@ -14,6 +14,7 @@ import { registerTemplateRoutes } from './features/consents/templates.routes.js'
 import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
 import { registerPhotoRoutes } from './features/photos/photos.routes.js';
+import { registerReminderRoutes } from './features/reminders/reminders.routes.js';
 import { registerProductRoutes } from './features/treatments/products.routes.js';
 import { registerTreatmentRoutes } from './features/treatments/treatments.routes.js';
 import { registerUserRoutes } from './features/users/users.routes.js';
@@ -42,6 +43,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerConsentRoutes(r, deps);
   registerProductRoutes(r, deps);
   registerTreatmentRoutes(r, deps);
+  registerReminderRoutes(r, deps);
   return r;
 }
 

@@ -7,6 +7,7 @@ import { openDatabase } from './db/data-source.js';
 import { DEMO_USERS, seedDemo } from './db/seed.js';
 import { startS3Fake, startSmtpFake, type RunningService } from './dev-services.js';
 import { createLogger } from './logger.js';
+import { createReminderScheduler } from './features/reminders/scheduler.js';
 import { createMailer } from './mail/outbox.js';
 import { createSmtpTransport } from './mail/transport.js';
 import { createObjectStore } from './storage/object-store.js';
@@ -29,6 +30,9 @@ const seeded = config.demo ? await seedDemo(db) : false;
 
 const mailer = createMailer({ db, storage, transport: createSmtpTransport(config.smtp), from: config.smtp.from, logger });
 mailer.start();
+// Started here, not in createApp, so tests drive reminders themselves with runOnce().
+const reminders = createReminderScheduler({ db, config, logger, mailer });
+reminders.start();
 
 const app = createApp({ db, config, logger, storage, mailer }, { staticDir: path.resolve('dist') });
 const server = app.listen(config.port, () => {
@@ -46,6 +50,7 @@ async function shutdown() {
   if (stopping) return;
   stopping = true;
   server.close();
+  await reminders.stop();
   await mailer.stop();
   await Promise.allSettled(services.map((s) => s.close()));
   await db.destroy();

@@ -81,6 +81,9 @@ export const EXPECTED: Record<string, Who[]> = {
   'POST /api/visits/:id/screening/acknowledge': CLINICAL,
   'GET /api/visits/:id/consultation': CLINICAL,
   'PUT /api/visits/:id/consultation': CLINICAL,
+  'GET /api/reminders': STAFF,
+  'GET /api/patients/:id/reminders': STAFF,
+  'POST /api/reminders/:id/cancel': STAFF,
 };
 void CLINICAL;
 
