@@ -13,6 +13,7 @@ import { registerHandoverRoutes } from './features/consents/handover.routes.js';
 import { registerTemplateRoutes } from './features/consents/templates.routes.js';
 import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
+import { registerLandmarkRoutes } from './features/landmarks/landmarks.routes.js';
 import { registerPhotoRoutes } from './features/photos/photos.routes.js';
 import { registerReminderRoutes } from './features/reminders/reminders.routes.js';
 import { registerProductRoutes } from './features/treatments/products.routes.js';
@@ -36,6 +37,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerPatientRoutes(r, deps);
   registerVisitRoutes(r, deps);
   registerPhotoRoutes(r, deps);
+  registerLandmarkRoutes(r, deps);
   registerCompareRoutes(r, deps);
   registerOutboxRoutes(r, deps);
   registerTemplateRoutes(r, deps);

@@ -28,8 +28,11 @@ export class Patient {
   @Column('boolean', { default: false })
   archived: boolean;
 
-  /** Target upper:lower lip ratio as x in 1:x (1, 1.6, 2 or custom); null when none is chosen. A guide, not a treatment target. */
-  @Column('real', { nullable: true })
+  /**
+   * Target upper:lower lip ratio as x in 1:x (1, 1.6, 2 or custom); null when none is chosen. A guide, not a treatment
+   * target. Not selected by default: the patient record is also shown to the front desk, which sees no clinical detail.
+   */
+  @Column('real', { nullable: true, select: false })
   lipRatioTarget: number | null;
 
   @Column('varchar', { length: 30 })

@@ -31,6 +31,7 @@ export interface CheckedLandmarks {
   points: (Point | null)[] | null;
   /** The anchors alignment uses: read from the 68 points when they hold them, else as placed by hand. */
   anchors: Point[] | null;
+  anchorsFrom: 'points' | 'placed' | null;
   ruler: { a: Point; b: Point; lengthMm: number } | null;
 }
 
@@ -74,6 +75,7 @@ export function checkLandmarks(
   }
 
   let anchors: Point[] | null = null;
+  let anchorsFrom: CheckedLandmarks['anchorsFrom'] = null;
   const needed = new Set(view.anchors.flatMap((a) => a.from68));
   const pointsHoldAnchors = !!points && points.length === 68 && [...needed].every((i) => points[i]);
   if (input.anchors) {
@@ -81,9 +83,13 @@ export function checkLandmarks(
       issues.push({ path: ['anchors'], message: `${view.label} needs ${view.anchors.length} anchors, got ${input.anchors.length}.` });
     } else if (input.anchors.every((p, i) => inside(p, ['anchors', i], `Anchor ${i + 1}`))) {
       anchors = input.anchors.map((p) => [p[0], p[1]] as Point);
+      anchorsFrom = 'placed';
     }
   }
-  if (pointsHoldAnchors && issues.length === 0) anchors = anchorsFrom68(view, points as Point[]);
+  if (pointsHoldAnchors && issues.length === 0) {
+    anchors = anchorsFrom68(view, points as Point[]);
+    anchorsFrom = 'points';
+  }
   if (anchors) apart(anchors, ['anchors'], 'Anchors');
 
   let ruler: CheckedLandmarks['ruler'] = null;
@@ -102,6 +108,6 @@ export function checkLandmarks(
   if (issues.length) return { ok: false, issues };
   return {
     ok: true,
-    value: { points: points ? points.map((p) => (p ? ([p[0], p[1]] as Point) : null)) : null, anchors, ruler },
+    value: { points: points ? points.map((p) => (p ? ([p[0], p[1]] as Point) : null)) : null, anchors, anchorsFrom, ruler },
   };
 }
