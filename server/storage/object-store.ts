@@ -29,6 +29,8 @@ export interface ObjectStore {
   /** Deletes keys; missing keys are not an error. */
   remove(keys: string[]): Promise<void>;
   list(prefix: string): Promise<string[]>;
+  /** Keys under a prefix with their sizes in bytes. */
+  listWithSizes(prefix: string): Promise<{ key: string; size: number }[]>;
   presign(key: string, seconds: number): Promise<string>;
   ensureBucket(): Promise<void>;
 }
@@ -57,6 +59,17 @@ export function createObjectStore(cfg: ObjectStoreConfig): ObjectStore {
     maxAttempts: 2,
   });
   const Bucket = cfg.bucket;
+  const listWithSizes = (prefix: string) =>
+    wrap('list', async () => {
+      const out: { key: string; size: number }[] = [];
+      let token: string | undefined;
+      do {
+        const page = await client.send(new ListObjectsV2Command({ Bucket, Prefix: prefix, ContinuationToken: token }));
+        for (const o of page.Contents ?? []) if (o.Key) out.push({ key: o.Key, size: o.Size ?? 0 });
+        token = page.IsTruncated ? page.NextContinuationToken : undefined;
+      } while (token);
+      return out;
+    });
   return {
     bucket: Bucket,
     put: (key, body, contentType) =>
@@ -80,17 +93,8 @@ export function createObjectStore(cfg: ObjectStoreConfig): ObjectStore {
           if (batch.length) await client.send(new DeleteObjectsCommand({ Bucket, Delete: { Objects: batch.map((Key) => ({ Key })), Quiet: true } }));
         }
       }),
-    list: (prefix) =>
-      wrap('list', async () => {
-        const keys: string[] = [];
-        let token: string | undefined;
-        do {
-          const out = await client.send(new ListObjectsV2Command({ Bucket, Prefix: prefix, ContinuationToken: token }));
-          for (const o of out.Contents ?? []) if (o.Key) keys.push(o.Key);
-          token = out.IsTruncated ? out.NextContinuationToken : undefined;
-        } while (token);
-        return keys;
-      }),
+    list: async (prefix) => (await listWithSizes(prefix)).map((o) => o.key),
+    listWithSizes,
     presign: (key, seconds) => getSignedUrl(client, new GetObjectCommand({ Bucket, Key: key }), { expiresIn: seconds }),
     ensureBucket: () =>
       wrap('bucket', async () => {
