@@ -15,6 +15,7 @@ import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
 import { registerLandmarkRoutes } from './features/landmarks/landmarks.routes.js';
 import { registerPhotoRoutes } from './features/photos/photos.routes.js';
+import { registerClinicDayRoutes } from './features/clinic-day/clinic-day.routes.js';
 import { registerReminderRoutes } from './features/reminders/reminders.routes.js';
 import { registerProductRoutes } from './features/treatments/products.routes.js';
 import { registerTreatmentRoutes } from './features/treatments/treatments.routes.js';
@@ -46,6 +47,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerProductRoutes(r, deps);
   registerTreatmentRoutes(r, deps);
   registerReminderRoutes(r, deps);
+  registerClinicDayRoutes(r, deps);
   return r;
 }
 

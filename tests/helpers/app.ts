@@ -50,7 +50,7 @@ export async function makeTestApp(env: Record<string, string> = {}, extra: Parti
   const config = loadConfig({ TWINFRAME_DATA_DIR: dataDir, S3_BUCKET: 'twinframe-test', S3_FAKE_PORT: String(s3.port), SMTP_FAKE_PORT: String(smtp.port), ...env });
   const storage = createObjectStore(config.s3);
   await storage.ensureBucket();
-  const logger = createLogger('silent');
+  const logger = createLogger(process.env.TEST_LOG ?? 'silent');
   // Not started: tests drive the outbox with kick()/runOnce()/idle() so nothing polls behind their back.
   const mailer = createMailer({ db, storage, transport: createSmtpTransport(config.smtp), from: config.smtp.from, logger });
   const deps: Deps = { db, config, logger, storage, mailer, ...extra };

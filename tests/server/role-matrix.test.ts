@@ -90,6 +90,7 @@ export const EXPECTED: Record<string, Who[]> = {
   'GET /api/reminders': STAFF,
   'GET /api/patients/:id/reminders': STAFF,
   'POST /api/reminders/:id/cancel': STAFF,
+  'GET /api/clinic-day/open-items': STAFF,
 };
 void CLINICAL;
 

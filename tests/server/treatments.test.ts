@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { AuditEvent } from '../../server/entities/audit-event.js';
 import { ConsentEvidence } from '../../server/entities/consent-evidence.js';
-import type { Patient } from '../../server/entities/patient.js';
+import { Patient as PatientEntity, type Patient } from '../../server/entities/patient.js';
 import type { Product } from '../../server/entities/product.js';
 import type { User } from '../../server/entities/user.js';
 import { createPatient, makeTestApp, signedIn, type Client, type TestApp } from '../helpers/app.js';
@@ -250,13 +250,44 @@ describe('screening review', () => {
     expect(ack.body.screening.allAcknowledged).toBe(true);
     expect(ack.body.screening.flags[1]).toMatchObject({ note: 'Check-up only, no procedure; proceed.', acknowledgedByName: 'Test practitioner' });
 
-    const logged = await t.db.getRepository(AuditEvent).findOneByOrFail({ action: 'screening.flags.acknowledge', targetId: record.id });
+    const logged = await t.db.getRepository(AuditEvent).findOneByOrFail({ action: 'consent.flags_acknowledge', targetId: record.id });
     expect(logged).toMatchObject({ actorId: practitioner.id, actorRole: 'practitioner', patientId: patient.id });
     expect(JSON.parse(logged.details).questionIds.sort()).toEqual(['blood-thinners', 'dental-work']);
 
     const ok = await prac.put(`/api/visits/${visitId}/treatment`).send(body);
     expect(ok.status).toBe(201);
     expect(ok.body.warnings).toEqual([]);
+  });
+
+  it('accepts the consent record\'s own single-note acknowledgement, and refuses a second review', async () => {
+    const { patient, visitId } = await freshVisit();
+    const record = await insertScreening(t.db, patient.id, ['cold-sore-history']);
+    const viaConsents = await prac.post(`/api/consents/${record.id}/acknowledge-flags`).send({ note: 'Antiviral cover arranged.' });
+    expect(viaConsents.status).toBe(200);
+    const review = await prac.get(`/api/visits/${visitId}/screening`);
+    expect(review.body.screening.flags[0]).toMatchObject({ questionId: 'cold-sore-history', acknowledged: true, note: 'Antiviral cover arranged.' });
+    const again = await prac.post(`/api/visits/${visitId}/screening/acknowledge`).send({ consentId: record.id, notes: [{ questionId: 'cold-sore-history', note: 'Again.' }] });
+    expect(again.status).toBe(409);
+    expect((await prac.put(`/api/visits/${visitId}/treatment`).send({ lines: [fillerLine(products.soft, [['upper-body', 0.2]])] })).status).toBe(201);
+  });
+
+  it('shows per-flag acknowledgements on the consent record too', async () => {
+    const { patient, visitId } = await freshVisit();
+    const record = await insertScreening(t.db, patient.id, ['vaccination']);
+    await prac.post(`/api/visits/${visitId}/screening/acknowledge`).send({ consentId: record.id, notes: [{ questionId: 'vaccination', note: 'Flu jab 3 weeks ago; fine.' }] });
+    const consent = await prac.get(`/api/consents/${record.id}`);
+    expect(consent.body.flagsAcknowledgedAt).toEqual(expect.any(String));
+    expect((await prac.post(`/api/consents/${record.id}/acknowledge-flags`).send({ note: 'twice' })).status).toBe(409);
+  });
+
+  it('treats a withdrawn latest questionnaire as none on file', async () => {
+    const { patient, visitId } = await freshVisit();
+    await insertScreening(t.db, patient.id, [], '2025-01-01T10:00:00.000Z');
+    const latest = await insertScreening(t.db, patient.id, ['pregnant-breastfeeding']);
+    await t.db.query(`UPDATE "consent_record" SET "withdrawnAt" = ?, "withdrawnById" = ?, "withdrawalReason" = ?, "withdrawalDate" = ? WHERE "id" = ?`, [new Date().toISOString(), practitioner.id, 'entered in error', '2025-06-01', latest.id]);
+    expect((await prac.get(`/api/visits/${visitId}/screening`)).body.screening).toBeNull();
+    const res = await prac.put(`/api/visits/${visitId}/treatment`).send({ lines: [fillerLine(products.soft, [['upper-body', 0.2]])] });
+    expect(res.body.warnings.map((w: { code: string }) => w.code)).toEqual(['NO_SCREENING']);
   });
 
   it("refuses another patient's questionnaire", async () => {
@@ -276,7 +307,7 @@ describe('screening review', () => {
 
 describe('consultation', () => {
   it('records goals, a target ratio and a staged plan', async () => {
-    const { visitId } = await freshVisit();
+    const { visitId, patient: { id: patientId } } = await freshVisit();
     const res = await prac.put(`/api/visits/${visitId}/consultation`).send({
       goals: ['more-volume', 'cupids-bow-definition'],
       goalsText: 'Wants a fuller upper lip without looking overdone.',
@@ -294,5 +325,8 @@ describe('consultation', () => {
     const custom = await prac.put(`/api/visits/${visitId}/consultation`).send({ goals: [], goalsText: 'Even lips', targetRatio: 'custom', customRatio: 1.3 });
     expect(custom.status).toBe(200);
     expect((await prac.get(`/api/visits/${visitId}/consultation`)).body).toMatchObject({ targetRatio: 'custom', customRatio: 1.3, goals: [] });
+    // The choice is the patient's lip-ratio target that the measurements use.
+    const row = await t.db.getRepository(PatientEntity).findOneOrFail({ where: { id: patientId }, select: { id: true, lipRatioTarget: true } });
+    expect(row.lipRatioTarget).toBe(1.3);
   });
 });

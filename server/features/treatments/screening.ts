@@ -1,5 +1,5 @@
 import type { Request } from 'express';
-import { In, IsNull, type DataSource, type EntityManager } from 'typeorm';
+import { In, type DataSource, type EntityManager } from 'typeorm';
 import { ConsentEvidence } from '../../entities/consent-evidence.js';
 import { ConsentRecord } from '../../entities/consent-record.js';
 import { ConsentTemplate, type TemplateQuestion } from '../../entities/consent-template.js';
@@ -39,9 +39,13 @@ interface AckDetails {
   notes?: Record<string, string>;
 }
 
-/** The latest screening questionnaire that has not been withdrawn, or null when the patient has none. */
+/**
+ * The patient's latest screening questionnaire, or null when there is none or the latest was withdrawn (an older
+ * one does not stand in for it: the open items then ask for a new questionnaire).
+ */
 export async function latestScreening(db: DataSource | EntityManager, patientId: string): Promise<ConsentRecord | null> {
-  return db.getRepository(ConsentRecord).findOne({ where: { patientId, kind: 'screening', withdrawnAt: IsNull() }, order: { signedAt: 'DESC' } });
+  const latest = await db.getRepository(ConsentRecord).findOne({ where: { patientId, kind: 'screening' }, order: { signedAt: 'DESC' } });
+  return latest && !latest.withdrawnAt ? latest : null;
 }
 
 /** Builds the review of one screening record: its answers, its flags and which of them a practitioner acknowledged. */
@@ -117,6 +121,8 @@ export async function acknowledgeFlags(
   }
   if (record.withdrawnAt) throw conflict('This questionnaire was withdrawn; ask the patient to complete a new one.');
   const review = await screeningReview(tx, record);
+  if (!review.flags.length) throw conflict('This questionnaire has no flagged answers.', undefined, 'NO_FLAGS');
+  if (review.allAcknowledged) throw conflict('The flagged answers were already reviewed.', undefined, 'ALREADY_ACKNOWLEDGED');
   const flagIds = new Set(review.flags.map((f) => f.questionId));
   const unknown = input.notes.filter((n) => !flagIds.has(n.questionId));
   if (unknown.length) throw badRequest('Only flagged answers can be acknowledged.', { questionIds: unknown.map((n) => n.questionId) });
@@ -134,13 +140,20 @@ export async function acknowledgeFlags(
     actorRole: req.user?.role ?? 'unknown',
     ip: req.ip ?? null,
     userAgent: req.get('user-agent')?.slice(0, 300) ?? null,
-    details: JSON.stringify({ notes, questionIds: Object.keys(notes), visitId: input.visitId } satisfies AckDetails & Record<string, unknown>),
+    // `note` and `flaggedQuestionIds` as the consent records' own acknowledgement writes them, plus one note per flag.
+    details: JSON.stringify({
+      note: input.notes.map((n) => `${review.flags.find((f) => f.questionId === n.questionId)?.label ?? n.questionId} — ${n.note}`).join('\n'),
+      notes,
+      flaggedQuestionIds: review.flags.map((f) => f.questionId),
+      byName: req.user?.name ?? null,
+      visitId: input.visitId,
+    } satisfies AckDetails & Record<string, unknown>),
   });
   await audit(tx, req, {
-    action: 'screening.flags.acknowledge',
+    action: 'consent.flags_acknowledge',
     patientId: record.patientId,
     targetType: 'consent',
     targetId: record.id,
-    details: { visitId: input.visitId, questionIds: Object.keys(notes) },
+    details: { flagged: review.flags.length, visitId: input.visitId, questionIds: Object.keys(notes) },
   });
 }

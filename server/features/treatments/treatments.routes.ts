@@ -11,6 +11,7 @@ import { audit } from '../../lib/audit.js';
 import { notFound } from '../../lib/errors.js';
 import { newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
+import { LIP_RATIO_PRESETS } from '../landmarks/landmarks.schemas.js';
 import { acknowledgeFlags, latestScreening, screeningReview } from './screening.js';
 import { cumulativeTotals } from './totals.js';
 import { acknowledgeFlagSchema, consultationInputSchema, treatmentInputSchema } from './treatments.schemas.js';
@@ -123,6 +124,15 @@ export function registerTreatmentRoutes(r: Router, { db, config }: Deps): void {
       if (existing) await repo.update({ id: existing.id }, fields);
       else await repo.insert({ id: newId(), visitId: visit.id, patientId: visit.patientId, createdAt: now, ...fields });
       const saved = await repo.findOneByOrFail({ visitId: visit.id });
+      // The chosen ratio becomes the patient's target, which the measurements compare against.
+      const target = body.targetRatio === null ? undefined : body.targetRatio === 'custom' ? body.customRatio! : LIP_RATIO_PRESETS.find((p) => p.key === body.targetRatio)!.value;
+      if (target !== undefined) {
+        const before = await tx.getRepository(Patient).findOne({ where: { id: visit.patientId }, select: { id: true, lipRatioTarget: true } });
+        if (before?.lipRatioTarget !== target) {
+          await tx.getRepository(Patient).update({ id: visit.patientId }, { lipRatioTarget: target, updatedAt: now });
+          await audit(tx, req, { action: 'patient.lip-ratio-target', patientId: visit.patientId, targetType: 'patient', targetId: visit.patientId, details: { from: before?.lipRatioTarget ?? null, to: target, consultationId: saved.id } });
+        }
+      }
       await audit(tx, req, {
         action: existing ? 'consultation.edit' : 'consultation.create',
         patientId: visit.patientId,
