@@ -40,3 +40,10 @@ export const comparisonSheetSchema = z
   .refine((s) => s.layout !== 'pair' || s.photoIds.length === 2, { message: 'A pair has exactly two photos.', path: ['photoIds'] })
   .refine((s) => new Set(s.photoIds).size === s.photoIds.length, { message: 'Each photo may appear only once.', path: ['photoIds'] });
 export type ComparisonSheetInput = z.input<typeof comparisonSheetSchema>;
+
+export const pairQuerySchema = z
+  .object({
+    baseline: photoId.describe('photo id of the baseline'),
+    followUp: photoId.describe('photo id of the follow-up'),
+  })
+  .strict();

@@ -32,7 +32,7 @@ const ALWAYS: { method: string; path: RegExp }[] = [
  * Reads of the reviewed patient that the review screen uses. The visit list is left out on purpose: it carries the
  * staff's visit notes, and the comparison payloads already carry each visit's date and kind.
  */
-const PATIENT_READ = new RegExp(`^/api/patients/(${UUID})(/(timeline|pairs|measurements))?$`);
+const PATIENT_READ = new RegExp(`^/api/patients/(${UUID})(/(timeline|compare|pairs|measurements))?$`);
 const PHOTO_READ = new RegExp(`^/api/photos/(${UUID})(/file)?$`);
 
 function refuse(): HttpError {
