@@ -12,6 +12,9 @@ import { registerConsentRoutes } from './features/consents/consents.routes.js';
 import { registerHandoverRoutes } from './features/consents/handover.routes.js';
 import { registerTemplateRoutes } from './features/consents/templates.routes.js';
 import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
+import { registerAccessLogRoutes } from './features/access-log/access-log.routes.js';
+import { registerPatientDataRoutes } from './features/patient-data/patient-data.routes.js';
+import { registerSettingsRoutes } from './features/settings/settings.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
 import { registerLandmarkRoutes } from './features/landmarks/landmarks.routes.js';
 import { registerPhotoRoutes } from './features/photos/photos.routes.js';
@@ -42,12 +45,15 @@ export function buildApiRouter(deps: Deps): Router {
   registerCompareRoutes(r, deps);
   registerOutboxRoutes(r, deps);
   registerTemplateRoutes(r, deps);
-  registerHandoverRoutes(r, deps);
-  registerConsentRoutes(r, deps);
   registerProductRoutes(r, deps);
   registerTreatmentRoutes(r, deps);
   registerReminderRoutes(r, deps);
   registerClinicDayRoutes(r, deps);
+  registerSettingsRoutes(r, deps);
+  registerAccessLogRoutes(r, deps);
+  registerPatientDataRoutes(r, deps);
+  registerHandoverRoutes(r, deps);
+  registerConsentRoutes(r, deps);
   return r;
 }
 

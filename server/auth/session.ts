@@ -8,6 +8,7 @@ import type { DataSource } from 'typeorm';
 import type { Config } from '../config.js';
 import { Session } from '../entities/session.js';
 import { User } from '../entities/user.js';
+import { getSettings } from '../features/settings/settings.service.js';
 import { checkCredentials } from './login.js';
 
 export const SESSION_COOKIE = 'tf.sid';
@@ -19,7 +20,8 @@ export const csrf = csrfSync({
 
 /** Sessions in SQLite (they survive a restart), idle logoff through a rolling cookie, passport-local and CSRF. */
 export function installSessions(app: Express, db: DataSource, config: Config): passport.Authenticator {
-  const store = new TypeormStore({ cleanupLimit: 2, ttl: config.idleMinutes * 60 }).connect(db.getRepository(Session));
+  // No fixed ttl: the store keeps each session as long as its cookie's maxAge, i.e. the idle timeout.
+  const store = new TypeormStore({ cleanupLimit: 2 }).connect(db.getRepository(Session));
   app.use(
     session({
       name: SESSION_COOKIE,
@@ -37,6 +39,14 @@ export function installSessions(app: Express, db: DataSource, config: Config): p
       },
     }),
   );
+
+  // The idle timeout is a clinic setting; apply the current value to every session on each request.
+  app.use((req, _res, next) => {
+    getSettings(db, config).then((s) => {
+      req.session.cookie.maxAge = s.idleMinutes * 60_000;
+      next();
+    }, next);
+  });
 
   const pp = new passport.Passport();
   pp.use(

@@ -31,6 +31,12 @@ export const EXPECTED: Record<string, Who[]> = {
   'GET /api/visits/:id': STAFF,
   'PATCH /api/visits/:id': STAFF,
   'GET /api/clinic-day': STAFF,
+  'GET /api/settings': STAFF,
+  'PATCH /api/settings': ['admin'],
+  'GET /api/access-log': ['admin'],
+  'GET /api/access-log.csv': ['admin'],
+  'GET /api/patients/:id/export': ['admin'],
+  'DELETE /api/patients/:id': ['admin'],
   'GET /api/outbox': ['admin'],
   'GET /api/outbox/:id': ['admin'],
   'POST /api/outbox/:id/retry': ['admin'],
@@ -94,6 +100,7 @@ export const EXPECTED: Record<string, Who[]> = {
   'GET /api/patients/:id/reminders': STAFF,
   'POST /api/reminders/:id/cancel': STAFF,
   'GET /api/clinic-day/open-items': STAFF,
+  'GET /api/treatment-settings': CLINICAL,
 };
 void CLINICAL;
 
