@@ -8,6 +8,8 @@ import { AppShell } from './shell';
  */
 export const router = createBrowserRouter([
   { path: '/sign-in', element: <SignInPage /> },
+  // Outside the shell: a device in hand-over shows only the patient's forms.
+  { path: '/handover', lazy: () => import('../features/consents/components/handover-flow').then((m) => ({ Component: m.HandoverFlowPage })) },
   {
     element: <AppShell />,
     children: [
@@ -16,13 +18,18 @@ export const router = createBrowserRouter([
       {
         path: 'patients/:patientId',
         lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientLayout })),
-        children: [{ index: true, lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientOverview })) }],
+        children: [
+          { index: true, lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientOverview })) },
+          { path: 'consents', lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientConsentsTab })) },
+        ],
       },
       { path: 'visits/:visitId', lazy: () => import('./routes/visit').then((m) => ({ Component: m.VisitRoute })) },
       { path: 'admin', lazy: () => import('./routes/admin').then((m) => ({ Component: m.AdminHome })) },
       { path: 'admin/users', lazy: () => import('./routes/admin').then((m) => ({ Component: m.UsersRoute })) },
       { path: 'admin/access-log', lazy: () => import('./routes/admin').then((m) => ({ Component: m.AccessLogRoute })) },
       { path: 'admin/settings', lazy: () => import('./routes/admin').then((m) => ({ Component: m.SettingsRoute })) },
+      { path: 'admin/consent-forms', lazy: () => import('./routes/admin').then((m) => ({ Component: m.ConsentFormsRoute })) },
+      { path: 'admin/outbox', lazy: () => import('./routes/admin').then((m) => ({ Component: m.OutboxRoute })) },
       { path: '*', element: <Navigate to="/" replace /> },
     ],
   },

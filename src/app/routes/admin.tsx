@@ -1,14 +1,18 @@
 import { Link } from 'react-router-dom';
-import { ChevronRight, ScrollText, Settings, UserCog, type LucideIcon } from 'lucide-react';
+import { ChevronRight, FileSignature, Mail, ScrollText, Settings, UserCog, type LucideIcon } from 'lucide-react';
 import { Card } from '../../components/ui/card';
 import { PageHeader } from '../../components/ui/page';
 import { AccessLogPage } from '../../features/access-log/components/access-log-page';
+import { ConsentFormsPage } from '../../features/consents/components/consent-forms-page';
+import { OutboxPage } from '../../features/consents/components/outbox-page';
 import { SettingsPage } from '../../features/settings/components/settings-page';
 import { UsersPage } from '../../features/users/components/users-page';
 import { RequireRole, useCurrentUser } from '../require-role';
 
 /** The admin area's sections; each feature adds its own entry and route. */
 export const ADMIN_SECTIONS: { to: string; label: string; description: string; icon: LucideIcon }[] = [
+  { to: '/admin/consent-forms', label: 'Consent forms', description: 'Treatment, photography and showcase consents, the health questionnaire; versions, publish, retire.', icon: FileSignature },
+  { to: '/admin/outbox', label: 'Outbox', description: 'E-mails sent to patients: signed copies and confirmations, pending and failed sends.', icon: Mail },
   { to: '/admin/users', label: 'Users', description: 'Staff sign-ins and roles, deactivation, password resets.', icon: UserCog },
   { to: '/admin/access-log', label: 'Access log', description: 'Who saw or changed what, and when. Filter and export as CSV.', icon: ScrollText },
   { to: '/admin/settings', label: 'Clinic settings', description: 'Clinic name and time zone, automatic sign-out, reminders, retention, watermark.', icon: Settings },
@@ -56,5 +60,17 @@ export const AccessLogRoute = () => (
 export const SettingsRoute = () => (
   <RequireRole roles={['admin']}>
     <SettingsPage />
+  </RequireRole>
+);
+
+export const ConsentFormsRoute = () => (
+  <RequireRole roles={['admin']}>
+    <ConsentFormsPage />
+  </RequireRole>
+);
+
+export const OutboxRoute = () => (
+  <RequireRole roles={['admin']}>
+    <OutboxPage />
   </RequireRole>
 );

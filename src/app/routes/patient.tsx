@@ -3,6 +3,7 @@ import { Notice } from '../../components/ui/notice';
 import { Spinner } from '../../components/ui/page';
 import { cn } from '../../lib/cn';
 import type { Me, Role } from '../../features/auth/types';
+import { PatientConsents } from '../../features/consents/components/patient-consents';
 import { usePatient } from '../../features/patients/api/patients';
 import { PatientHeader } from '../../features/patients/components/patient-header';
 import type { Patient } from '../../features/patients/types';
@@ -10,7 +11,10 @@ import { VisitList } from '../../features/visits/components/visit-list';
 import { useCurrentUser } from '../require-role';
 
 /** Tabs of the patient page; each lists the roles that see it. */
-const TABS: { to: string; label: string; roles: Role[] }[] = [{ to: '', label: 'Overview', roles: ['admin', 'practitioner', 'coordinator'] }];
+const TABS: { to: string; label: string; roles: Role[] }[] = [
+  { to: '', label: 'Overview', roles: ['admin', 'practitioner', 'coordinator'] },
+  { to: 'consents', label: 'Consents', roles: ['admin', 'practitioner', 'coordinator'] },
+];
 
 export interface PatientContext {
   me: Me;
@@ -50,4 +54,9 @@ export function PatientLayout() {
 export function PatientOverview() {
   const { me, patient } = usePatientContext();
   return <VisitList patientId={patient.id} canWriteNotes={me.role !== 'coordinator'} />;
+}
+
+export function PatientConsentsTab() {
+  const { patient } = usePatientContext();
+  return <PatientConsents patient={patient} />;
 }
