@@ -24,7 +24,12 @@ import {
   pairsQuerySchema,
   putLandmarksSchema,
   ratioTargetView,
+  type LandmarkViewDto,
+  type LipRatioTargetDto,
+  type MeasurementsDto,
+  type PairsDto,
   type StoredLandmarks,
+  type ViewSummaryDto,
 } from './landmarks.schemas.js';
 
 /** After a photo is stored: queue its alignment and return at once, so the upload is answered without waiting. */
@@ -40,7 +45,7 @@ const fileUrl = (photo: Photo, variant: string, format: string) => {
   return v ? `/api/photos/${photo.id}/file?variant=${variant}&format=${format}${v.rev ? `&rev=${v.rev}` : ''}` : null;
 };
 
-function viewSummary(view: ViewDef) {
+function viewSummary(view: ViewDef): ViewSummaryDto {
   return {
     key: view.key,
     label: view.label,
@@ -52,7 +57,7 @@ function viewSummary(view: ViewDef) {
 }
 
 /** Everything the landmark editor needs about one photo. */
-function landmarkView(photo: Photo, view: ViewDef) {
+function landmarkView(photo: Photo, view: ViewDef): LandmarkViewDto {
   const display = displayVariant(photo);
   return {
     photoId: photo.id,
@@ -162,7 +167,7 @@ export function registerLandmarkRoutes(r: Router, deps: Deps): void {
     // The first aligned photo is the reference the later ones are checked against.
     const baseline = rows.find((p) => p.alignmentState === 'aligned') ?? rows[0] ?? null;
     await audit(db, req, { action: 'photo.pairs.view', patientId: params.id, targetType: 'patient', targetId: params.id, details: { view: query.view, photos: rows.length } });
-    res.json({
+    const body: PairsDto = {
       view: view ? viewSummary(view) : { key: query.view },
       baselinePhotoId: baseline?.id ?? null,
       photos: rows.map((p) => {
@@ -190,7 +195,8 @@ export function registerLandmarkRoutes(r: Router, deps: Deps): void {
           warnings,
         };
       }),
-    });
+    };
+    res.json(body);
   });
 
   const measurements = validate({ params: idParams, query: measurementsQuerySchema });
@@ -201,7 +207,7 @@ export function registerLandmarkRoutes(r: Router, deps: Deps): void {
     rows.sort((a, b) => (a.visit?.startsAt ?? '').localeCompare(b.visit?.startsAt ?? '') || a.capturedAt.localeCompare(b.capturedAt));
     const byView = new Map<string, Photo[]>();
     for (const p of rows) byView.set(p.viewKey, [...(byView.get(p.viewKey) ?? []), p]);
-    const views = [];
+    const views: MeasurementsDto['views'] = [];
     for (const [viewKey, list] of byView) {
       const view = await viewOfPhoto(db, list[0]);
       const base = list.find((p) => p.visitId === query.baseline) ?? list[0];
@@ -224,7 +230,8 @@ export function registerLandmarkRoutes(r: Router, deps: Deps): void {
       });
     }
     await audit(db, req, { action: 'measurements.view', patientId: params.id, targetType: 'patient', targetId: params.id });
-    res.json({ target: ratioTargetView(target), presets: LIP_RATIO_PRESETS, caution: MEASUREMENT_CAUTION, baselineVisitId: query.baseline ?? null, views });
+    const body: MeasurementsDto = { target: ratioTargetView(target), presets: LIP_RATIO_PRESETS, caution: MEASUREMENT_CAUTION, baselineVisitId: query.baseline ?? null, views };
+    res.json(body);
   });
 
   const setTarget = validate({ params: idParams, body: lipRatioTargetSchema });
@@ -236,6 +243,7 @@ export function registerLandmarkRoutes(r: Router, deps: Deps): void {
       await tx.getRepository(Patient).update({ id: params.id }, { lipRatioTarget: value, updatedAt: nowIso() });
       await audit(tx, req, { action: 'patient.lip-ratio-target', patientId: params.id, targetType: 'patient', targetId: params.id, details: { from: before, to: value } });
     });
-    res.json({ target: ratioTargetView(value), presets: LIP_RATIO_PRESETS, caution: MEASUREMENT_CAUTION });
+    const answer: LipRatioTargetDto = { target: ratioTargetView(value), presets: LIP_RATIO_PRESETS, caution: MEASUREMENT_CAUTION };
+    res.json(answer);
   });
 }

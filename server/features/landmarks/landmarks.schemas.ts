@@ -97,3 +97,94 @@ export function ratioTargetView(value: number | null) {
   const preset = LIP_RATIO_PRESETS.find((p) => Math.abs(p.value - value) < 1e-9);
   return { value, key: preset?.key ?? 'custom', label: preset?.label ?? `Custom (1:${value})` };
 }
+
+/** A view's alignment definition as the client sees it. */
+export interface ViewSummaryDto {
+  key: string;
+  label: string;
+  kind: 'face' | 'lips' | 'profile';
+  measured: boolean;
+  frame: { width: number; height: number };
+  anchors: { key: string; label: string; from68: readonly number[] }[];
+}
+
+export interface PlainWarning {
+  code: string;
+  message: string;
+}
+
+/** GET /api/photos/:id/landmarks (and the answer to PUT and reset). */
+export interface LandmarkViewDto {
+  photoId: string;
+  patientId: string;
+  visitId: string;
+  view: ViewSummaryDto;
+  alignmentState: AlignmentState;
+  alignmentNote: string | null;
+  image: { url: string | null; width: number; height: number } | null;
+  aligned: { url: string | null; jpegUrl: string | null; width: number; height: number; rev: number } | null;
+  landmarks: StoredLandmarks | null;
+  alignment: StoredAlignment | null;
+  pose: Pose | null;
+  quality: StoredQuality | null;
+  measurements: LipMeasurements | null;
+  warnings: PlainWarning[];
+  caution: string;
+}
+
+/** GET /api/patients/:id/pairs?view= */
+export interface PairsDto {
+  view: ViewSummaryDto | { key: string };
+  baselinePhotoId: string | null;
+  photos: {
+    photoId: string;
+    visitId: string;
+    visitStartsAt: string | null;
+    visitKind: string | null;
+    capturedAt: string;
+    isBaseline: boolean;
+    alignmentState: AlignmentState;
+    alignmentNote: string | null;
+    landmarksSource: 'auto' | 'manual' | null;
+    aligned: { url: string | null; jpegUrl: string | null; width: number; height: number } | null;
+    displayUrl: string | null;
+    thumbUrl: string | null;
+    pose: Pose | null;
+    warnings: PlainWarning[];
+  }[];
+}
+
+export type RatioTargetDto = { value: number; key: string; label: string } | null;
+
+/** GET /api/patients/:id/measurements */
+export interface MeasurementsDto {
+  target: RatioTargetDto;
+  presets: typeof LIP_RATIO_PRESETS;
+  caution: string;
+  baselineVisitId: string | null;
+  views: {
+    viewKey: string;
+    label: string;
+    baselinePhotoId: string;
+    rows: {
+      photoId: string;
+      visitId: string;
+      visitStartsAt: string | null;
+      visitKind: string | null;
+      capturedAt: string;
+      isBaseline: boolean;
+      alignmentState: AlignmentState;
+      landmarksSource: 'auto' | 'manual' | null;
+      measurements: LipMeasurements;
+      change: MeasurementChange | null;
+    }[];
+  }[];
+}
+
+/** PATCH /api/patients/:id/lip-ratio-target */
+export interface LipRatioTargetDto {
+  target: RatioTargetDto;
+  presets: typeof LIP_RATIO_PRESETS;
+  caution: string;
+}
+export type LipRatioTargetInput = z.input<typeof lipRatioTargetSchema>;
