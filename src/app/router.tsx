@@ -21,6 +21,7 @@ export const router = createBrowserRouter([
         children: [
           { index: true, lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientOverview })) },
           { path: 'consents', lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientConsentsTab })) },
+          { path: 'data', lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientDataTab })) },
         ],
       },
       { path: 'visits/:visitId', lazy: () => import('./routes/visit').then((m) => ({ Component: m.VisitRoute })) },

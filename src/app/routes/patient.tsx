@@ -5,6 +5,7 @@ import { cn } from '../../lib/cn';
 import type { Me, Role } from '../../features/auth/types';
 import { PatientConsents } from '../../features/consents/components/patient-consents';
 import { usePatient } from '../../features/patients/api/patients';
+import { PatientDataPanel } from '../../features/patient-data/components/patient-data-panel';
 import { PatientHeader } from '../../features/patients/components/patient-header';
 import type { Patient } from '../../features/patients/types';
 import { VisitList } from '../../features/visits/components/visit-list';
@@ -14,6 +15,7 @@ import { useCurrentUser } from '../require-role';
 const TABS: { to: string; label: string; roles: Role[] }[] = [
   { to: '', label: 'Overview', roles: ['admin', 'practitioner', 'coordinator'] },
   { to: 'consents', label: 'Consents', roles: ['admin', 'practitioner', 'coordinator'] },
+  { to: 'data', label: 'Data rights', roles: ['admin'] },
 ];
 
 export interface PatientContext {
@@ -59,4 +61,9 @@ export function PatientOverview() {
 export function PatientConsentsTab() {
   const { patient } = usePatientContext();
   return <PatientConsents patient={patient} />;
+}
+
+export function PatientDataTab() {
+  const { me, patient } = usePatientContext();
+  return me.role === 'admin' ? <PatientDataPanel patient={patient} /> : null;
 }
