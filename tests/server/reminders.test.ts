@@ -72,6 +72,20 @@ describe('reminder due dates', () => {
   });
 });
 
+describe('clinic settings', () => {
+  it("take the admin's review and maintenance intervals over the defaults", async () => {
+    const admin = (await signedIn(t, 'admin')).client;
+    expect((await admin.patch('/api/settings').send({ reviewReminderDays: 21, maintenanceReminderMonths: 9 })).status).toBe(200);
+    try {
+      const { review, maintenance } = await treat(await createPatient(t.db), '2025-03-10T10:00:00Z');
+      expect(review.dueOn).toBe('2025-03-31');
+      expect(maintenance.dueOn).toBe('2025-12-10');
+    } finally {
+      await admin.patch('/api/settings').send({ reviewReminderDays: 14, maintenanceReminderMonths: 6 });
+    }
+  });
+});
+
 describe('sending', () => {
   it('queues a due reminder once, even after a restart, and the mail reads right', async () => {
     const patient = await createPatient(t.db, { firstName: 'Orla', lastName: 'Pennifold', email: 'orla.pennifold@mail.example' });

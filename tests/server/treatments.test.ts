@@ -63,6 +63,15 @@ describe('product catalogue', () => {
   });
 });
 
+describe('treatment settings', () => {
+  it('tells the treatment screen its thresholds', async () => {
+    const res = await prac.get('/api/treatment-settings');
+    // Defaults: above 2 mL per session warns; review at 14 days, maintenance at 6 months (FACTS 17, common practice).
+    expect(res.body).toMatchObject({ highVolumeMl: 2, lotWarnDays: 30, reviewDays: 14, maintenanceMonths: 6, timeZone: 'Europe/London' });
+    expect(res.body.limits.fillerPerZoneMl).toBe(2);
+  });
+});
+
 describe('recording a treatment', () => {
   it('stores lines, doses per zone and totals, and plans the reminders', async () => {
     const { patient, visitId } = await freshVisit();

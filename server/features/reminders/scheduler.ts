@@ -6,6 +6,7 @@ import { Reminder } from '../../entities/reminder.js';
 import { Treatment } from '../../entities/treatment.js';
 import { nowIso } from '../../lib/time.js';
 import { queueMail, type Mailer } from '../../mail/outbox.js';
+import { getSettings } from '../settings/settings.service.js';
 import { reminderMail } from './reminder-mail.js';
 
 export interface ReminderSchedulerOptions {
@@ -33,7 +34,7 @@ class LostClaim extends Error {}
 
 export function createReminderScheduler(deps: {
   db: DataSource;
-  config: Pick<Config, 'clinicName' | 'clinicTimeZone'>;
+  config: Config;
   logger: Logger;
   mailer: Pick<Mailer, 'kick'>;
   options?: Partial<ReminderSchedulerOptions>;
@@ -62,7 +63,8 @@ export function createReminderScheduler(deps: {
       return false;
     }
     const treatment = await deps.db.getRepository(Treatment).findOneBy({ id: r.treatmentId });
-    const mail = reminderMail({ kind: r.kind, patient, clinicName: deps.config.clinicName, treatedOn: treatment?.treatedOn ?? r.dueOn, dueOn: r.dueOn });
+    const { clinicName } = await getSettings(deps.db, deps.config);
+    const mail = reminderMail({ kind: r.kind, patient, clinicName, treatedOn: treatment?.treatedOn ?? r.dueOn, dueOn: r.dueOn });
     try {
       await deps.db.transaction(async (tx) => {
         const queued = await queueMail(tx, { to: patient.email!, subject: mail.subject, text: mail.text, relatedType: 'reminder', relatedId: r.id, patientId: r.patientId });

@@ -12,8 +12,8 @@ export function defaultSettings(config: Config): Settings {
     timeZone: config.clinicTimeZone,
     idleMinutes: config.idleMinutes,
     // Review 2–4 weeks after filler, maintenance around 6 months (filler lasts about 6–9 months): common practice.
-    reviewReminderDays: 14,
-    maintenanceReminderMonths: 6,
+    reviewReminderDays: config.treatments.reviewDays,
+    maintenanceReminderMonths: config.treatments.maintenanceMonths,
     // A common minimum for adult clinical records; the screen defers to local law and professional guidance.
     retentionYears: 8,
     watermarkText: config.clinicName,

@@ -12,9 +12,10 @@ import { notFound } from '../../lib/errors.js';
 import { newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
 import { LIP_RATIO_PRESETS } from '../landmarks/landmarks.schemas.js';
+import { getSettings } from '../settings/settings.service.js';
 import { acknowledgeFlags, latestScreening, screeningReview } from './screening.js';
 import { cumulativeTotals } from './totals.js';
-import { acknowledgeFlagSchema, consultationInputSchema, treatmentInputSchema } from './treatments.schemas.js';
+import { acknowledgeFlagSchema, consultationInputSchema, LIMITS, treatmentInputSchema } from './treatments.schemas.js';
 import { loadTreatment, saveTreatment, treatmentView } from './treatments.service.js';
 
 const idParams = z.object({ id: uuidParam });
@@ -36,6 +37,18 @@ export function registerTreatmentRoutes(r: Router, { db, config }: Deps): void {
     if (!v) throw notFound('Visit');
     return v;
   };
+
+  r.get('/api/treatment-settings', allow(...CLINICAL), async (_req, res) => {
+    const settings = await getSettings(db, config);
+    res.json({
+      highVolumeMl: config.treatments.highVolumeMl,
+      lotWarnDays: config.treatments.lotWarnDays,
+      reviewDays: settings.reviewReminderDays,
+      maintenanceMonths: settings.maintenanceReminderMonths,
+      timeZone: settings.timeZone,
+      limits: LIMITS,
+    });
+  });
 
   const one = validate({ params: idParams });
   r.get('/api/visits/:id/treatment', allow(...CLINICAL), one, async (req, res) => {

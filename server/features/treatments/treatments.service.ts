@@ -9,6 +9,7 @@ import { audit } from '../../lib/audit.js';
 import { badRequest, conflict } from '../../lib/errors.js';
 import { newId, nowIso } from '../../lib/time.js';
 import { reminderDueDates, syncReminders } from '../reminders/reminders.service.js';
+import { getSettings } from '../settings/settings.service.js';
 import { dayIn, lotStatus, type LotStatus } from './dates.js';
 import { assertScreeningCleared } from './screening.js';
 import { lineTotal, toMilli, treatmentTotals, volumeWarnings, type Totals } from './totals.js';
@@ -184,7 +185,9 @@ export async function saveTreatment(
   if (visit.status === 'cancelled') throw conflict('This visit was cancelled; record the treatment on the visit where it was given.', undefined, 'VISIT_CANCELLED');
   const treatedAt = input.treatedAt ? new Date(input.treatedAt) : new Date();
   if (treatedAt.getTime() > Date.now() + 5 * 60_000) throw badRequest('The treatment time is in the future.', [{ path: 'treatedAt', message: 'Use the time the treatment was given.' }]);
-  const treatedOn = dayIn(config.clinicTimeZone, treatedAt);
+  // The clinic's own settings (admin screen) over the environment's defaults.
+  const settings = await getSettings(db, config);
+  const treatedOn = dayIn(settings.timeZone, treatedAt);
 
   return db.transaction(async (tx) => {
     const screening = await assertScreeningCleared(tx, visit.patientId);
@@ -244,10 +247,10 @@ export async function saveTreatment(
 
     const withMaintenance = input.lines.some((l) => byId.get(l.productId)!.kind === 'filler');
     const due = reminderDueDates(treatedOn, {
-      reviewDays: input.reviewAfterDays ?? config.treatments.reviewDays,
-      maintenanceMonths: input.maintenanceAfterMonths ?? config.treatments.maintenanceMonths,
+      reviewDays: input.reviewAfterDays ?? settings.reviewReminderDays,
+      maintenanceMonths: input.maintenanceAfterMonths ?? settings.maintenanceReminderMonths,
       reminderHour: config.treatments.reminderHour,
-      timeZone: config.clinicTimeZone,
+      timeZone: settings.timeZone,
       withMaintenance,
     });
     await syncReminders(tx, { id: treatmentId, patientId: visit.patientId, visitId: visit.id }, due);
