@@ -10,6 +10,8 @@ export const router = createBrowserRouter([
   { path: '/sign-in', element: <SignInPage /> },
   // Outside the shell: a device in hand-over shows only the patient's forms.
   { path: '/handover', lazy: () => import('../features/consents/components/handover-flow').then((m) => ({ Component: m.HandoverFlowPage })) },
+  // Outside the shell: review mode shows one patient's comparison full screen, with no way to other records.
+  { path: '/review', lazy: () => import('./routes/review').then((m) => ({ Component: m.ReviewRoute })) },
   {
     element: <AppShell />,
     children: [
@@ -22,8 +24,10 @@ export const router = createBrowserRouter([
           { index: true, lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientOverview })) },
           { path: 'consents', lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientConsentsTab })) },
           { path: 'data', lazy: () => import('./routes/patient').then((m) => ({ Component: m.PatientDataTab })) },
+          { path: 'timeline', lazy: () => import('./routes/compare').then((m) => ({ Component: m.PatientTimelineTab })) },
         ],
       },
+      { path: 'patients/:patientId/compare', lazy: () => import('./routes/compare').then((m) => ({ Component: m.CompareRoute })) },
       { path: 'visits/:visitId', lazy: () => import('./routes/visit').then((m) => ({ Component: m.VisitRoute })) },
       { path: 'admin', lazy: () => import('./routes/admin').then((m) => ({ Component: m.AdminHome })) },
       { path: 'admin/users', lazy: () => import('./routes/admin').then((m) => ({ Component: m.UsersRoute })) },

@@ -7,6 +7,7 @@ import { Spinner } from '../components/ui/page';
 import { onSessionEnded } from '../lib/api-client';
 import { cn } from '../lib/cn';
 import { authKeys, useLogout, useMe } from '../features/auth/api/auth';
+import { useReview } from '../features/compare/api/compare';
 import type { Me, Role } from '../features/auth/types';
 
 /** Main navigation; each entry lists the roles that see it (the server checks again). */
@@ -24,6 +25,8 @@ export function AppShell() {
   const navigate = useNavigate();
   const qc = useQueryClient();
   const logout = useLogout();
+  // A reload or the back button during review mode returns to it: the server keeps it in the session.
+  const review = useReview(!!me);
 
   useEffect(
     () =>
@@ -44,6 +47,7 @@ export function AppShell() {
 
   if (isPending) return <Spinner label="Opening Twinframe" />;
   if (!me) return <Navigate to="/sign-in" replace state={{ from: location.pathname + location.search }} />;
+  if (review.data?.active) return <Navigate to="/review" replace />;
 
   return (
     <div className="min-h-dvh">
@@ -82,7 +86,7 @@ export function AppShell() {
 }
 
 /** Signs out after the idle time without a touch, click or key, so an unattended tablet shows no patient data. */
-function useIdleLogoff(minutes: number | undefined, onIdle: () => void) {
+export function useIdleLogoff(minutes: number | undefined, onIdle: () => void) {
   const onIdleRef = useRef(onIdle);
   onIdleRef.current = onIdle;
   useEffect(() => {

@@ -14,6 +14,7 @@ import { useCurrentUser } from '../require-role';
 /** Tabs of the patient page; each lists the roles that see it. */
 const TABS: { to: string; label: string; roles: Role[] }[] = [
   { to: '', label: 'Overview', roles: ['admin', 'practitioner', 'coordinator'] },
+  { to: 'timeline', label: 'Timeline', roles: ['admin', 'practitioner'] },
   { to: 'consents', label: 'Consents', roles: ['admin', 'practitioner', 'coordinator'] },
   { to: 'data', label: 'Data rights', roles: ['admin'] },
 ];
