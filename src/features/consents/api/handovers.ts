@@ -1,3 +1,4 @@
+import { useEffect } from 'react';
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api, resetCsrf } from '../../../lib/api-client';
 import type { ClaimHandoverInput, CreateHandoverInput, SignFormInput } from '../../../../server/features/consents/handover.schemas';
@@ -24,20 +25,25 @@ export const useHandoverStatus = (id: string | null) =>
 export const useCurrentHandover = (enabled = true) => useQuery({ ...currentHandoverQuery(), enabled });
 
 /**
- * Starts a hand-over. On "this device" the server ends the staff sign-in, so every cached staff query
- * is dropped and the CSRF token of the new session is taken from the answer.
+ * Starts a hand-over. On "this device" the server ends the staff sign-in, so the CSRF token is renewed;
+ * the staff data still cached is dropped by the hand-over page (dropping it here would send the staff
+ * screens to sign-in before the hand-over page has loaded).
  */
 export function useStartHandover() {
-  const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: CreateHandoverInput) => api<StartedHandover>('/api/handovers', { method: 'POST', body: input }),
     onSuccess: (h) => {
-      if (h.mode === 'this-device') {
-        resetCsrf();
-        qc.clear();
-      }
+      if (h.mode === 'this-device') resetCsrf();
     },
   });
+}
+
+/** Drops everything cached by an earlier staff sign-in on this device, keeping only the hand-over's own data. */
+export function useForgetStaffData() {
+  const qc = useQueryClient();
+  useEffect(() => {
+    qc.removeQueries({ predicate: (q) => q.queryKey[0] !== handoverKeys.all[0] });
+  }, [qc]);
 }
 
 export function useCancelHandover() {

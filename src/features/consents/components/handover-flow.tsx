@@ -8,7 +8,7 @@ import { Notice } from '../../../components/ui/notice';
 import { Spinner } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { cn } from '../../../lib/cn';
-import { markShown, useClaimHandover, useCurrentHandover, useDeclineForm, useSignForm } from '../api/handovers';
+import { markShown, useClaimHandover, useForgetStaffData, useCurrentHandover, useDeclineForm, useSignForm } from '../api/handovers';
 import { CHANNEL_LABEL, KIND_LABEL, type Crop, type CurrentHandover, type HandoverForm, type ShowcaseChannel, type TemplateQuestion } from '../types';
 import { Markdown } from './markdown';
 import { SignaturePad, type SignaturePadHandle } from './signature-pad';
@@ -20,6 +20,7 @@ import { SignaturePad, type SignaturePadHandle } from './signature-pad';
  */
 export function HandoverFlowPage() {
   useNoWayOut();
+  useForgetStaffData();
   const link = useClaimFromLink();
   const current = useCurrentHandover(!link.pending);
   const [started, setStarted] = useState(false);
@@ -145,6 +146,7 @@ function FormStep({ h, form }: { h: CurrentHandover; form: HandoverForm }) {
   const [name, setName] = useState('');
   const [errors, setErrors] = useState<Errors>({});
   const top = useRef<HTMLHeadingElement>(null);
+  const clearError = (key: string) => setErrors((e) => (key in e ? Object.fromEntries(Object.entries(e).filter(([k]) => k !== key)) : e));
 
   useEffect(() => {
     window.scrollTo(0, 0);
@@ -217,7 +219,10 @@ function FormStep({ h, form }: { h: CurrentHandover; form: HandoverForm }) {
         <section className="mt-8 space-y-5" aria-label="Questions">
           <h2 className="text-xl font-semibold">{form.kind === 'screening' ? 'Your answers' : 'Your choices'}</h2>
           {form.questions.map((q) => (
-            <Question key={q.id} q={q} value={answers[q.id] ?? ''} error={errors[`q:${q.id}`]} onChange={(v) => setAnswers((a) => ({ ...a, [q.id]: v }))} />
+            <Question key={q.id} q={q} value={answers[q.id] ?? ''} error={errors[`q:${q.id}`]} onChange={(v) => {
+                setAnswers((a) => ({ ...a, [q.id]: v }));
+                clearError(`q:${q.id}`);
+              }} />
           ))}
         </section>
       )}
@@ -234,7 +239,10 @@ function FormStep({ h, form }: { h: CurrentHandover; form: HandoverForm }) {
                     type="checkbox"
                     className="size-5 accent-[var(--color-ink)]"
                     checked={channels.includes(c)}
-                    onChange={(e) => setChannels((cs) => (e.target.checked ? [...cs, c] : cs.filter((x) => x !== c)))}
+                    onChange={(e) => {
+                      setChannels((cs) => (e.target.checked ? [...cs, c] : cs.filter((x) => x !== c)));
+                      clearError('channels');
+                    }}
                   />
                   <span className="text-[17px]">{CHANNEL_LABEL[c]}</span>
                 </label>
@@ -252,7 +260,7 @@ function FormStep({ h, form }: { h: CurrentHandover; form: HandoverForm }) {
                 ] as const
               ).map(([value, label]) => (
                 <label key={value} className={cn('flex min-h-14 cursor-pointer items-center gap-3 rounded-xl border bg-paper-raised px-4', crop === value ? 'border-ink' : 'border-line-strong')}>
-                  <input type="radio" name="crop" className="size-5 accent-[var(--color-ink)]" checked={crop === value} onChange={() => setCrop(value)} />
+                  <input type="radio" name="crop" className="size-5 accent-[var(--color-ink)]" checked={crop === value} onChange={() => (setCrop(value), clearError('crop'))} />
                   <span className="text-[17px]">{label}</span>
                 </label>
               ))}
@@ -265,11 +273,11 @@ function FormStep({ h, form }: { h: CurrentHandover; form: HandoverForm }) {
       <section className="mt-8 space-y-5 rounded-2xl border border-line bg-paper-raised p-5" aria-label="Sign">
         <h2 className="text-xl font-semibold">Sign</h2>
         <Field label="Your full name" error={errors.name}>
-          {(p) => <Input {...p} value={name} onChange={(e) => setName(e.target.value)} autoComplete="off" autoCapitalize="words" className="min-h-12 text-lg" />}
+          {(p) => <Input {...p} value={name} onChange={(e) => (setName(e.target.value), clearError('name'))} autoComplete="off" autoCapitalize="words" className="min-h-12 text-lg" />}
         </Field>
         <div data-invalid={Boolean(errors.signature) || undefined}>
           <p className="mb-1.5 text-sm font-medium text-ink-muted">Your signature</p>
-          <SignaturePad ref={pad} label="Signature pad" invalid={Boolean(errors.signature)} />
+          <SignaturePad ref={pad} label="Signature pad" invalid={Boolean(errors.signature)} onChange={(empty) => !empty && clearError('signature')} />
           {errors.signature && <p className="mt-1 text-sm text-danger" role="alert">{errors.signature}</p>}
         </div>
         <p className="text-sm text-ink-muted">By signing you confirm that you have read this form and that the answers and choices above are yours. You will receive a copy by e-mail.</p>
