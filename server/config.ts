@@ -5,6 +5,8 @@ export interface Config {
   port: number;
   dataDir: string;
   demo: boolean;
+  /** Draw invented portraits for the demo patients' past visits (in the background after start). */
+  demoPhotos: boolean;
   /** Start the local S3 and SMTP fakes inside this process. */
   startFakes: boolean;
   sessionSecret: string;
@@ -68,6 +70,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     port: int(env.PORT, 8080),
     dataDir,
     demo: env.TWINFRAME_DEMO !== '0',
+    demoPhotos: env.TWINFRAME_DEMO !== '0' && env.TWINFRAME_DEMO_PHOTOS !== '0',
     startFakes: !externalS3 && env.TWINFRAME_FAKES !== '0',
     sessionSecret: env.SESSION_SECRET ?? 'twinframe-local-development-secret-change-me',
     idleMinutes: positive(env.TWINFRAME_IDLE_MINUTES, 15),

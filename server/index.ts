@@ -5,6 +5,7 @@ import { createApp } from './app.js';
 import { loadConfig } from './config.js';
 import { openDatabase } from './db/data-source.js';
 import { DEMO_USERS, seedDemo } from './db/seed.js';
+import { seedDemoPhotos } from './db/seed-photos.js';
 import { startS3Fake, startSmtpFake, type RunningService } from './dev-services.js';
 import { createLogger } from './logger.js';
 import { createReminderScheduler } from './features/reminders/scheduler.js';
@@ -43,6 +44,13 @@ const server = app.listen(config.port, () => {
     for (const u of DEMO_USERS) lines.push(`  ${u.role.padEnd(13)} ${u.email.padEnd(28)} ${u.password}`);
   }
   console.log(lines.join('\n'));
+  if (config.demoPhotos) {
+    // In the background, so the app answers at once; each portrait goes through the real photo pipeline.
+    const started = Date.now();
+    seedDemoPhotos({ db, storage, logger, config })
+      .then((n) => n && console.log(`Demo photos: ${n} invented portraits stored in ${Math.round((Date.now() - started) / 1000)} s`))
+      .catch((err: unknown) => logger.error({ err }, 'demo photos could not be seeded'));
+  }
 });
 
 let stopping = false;

@@ -41,7 +41,7 @@ export async function startServer(env: Record<string, string> = {}): Promise<Run
   const [port, s3, smtp] = [await freePort(), await freePort(), await freePort()];
   let log = '';
   const child: ChildProcess = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
-    env: { ...process.env, PORT: String(port), TWINFRAME_DATA_DIR: dataDir, S3_FAKE_PORT: String(s3), SMTP_FAKE_PORT: String(smtp), TWINFRAME_DEMO: '1', LOG_LEVEL: 'warn', ...env },
+    env: { ...process.env, PORT: String(port), TWINFRAME_DATA_DIR: dataDir, S3_FAKE_PORT: String(s3), SMTP_FAKE_PORT: String(smtp), TWINFRAME_DEMO: '1', TWINFRAME_DEMO_PHOTOS: '0', LOG_LEVEL: 'warn', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   child.stdout!.on('data', (d) => (log += d));
