@@ -14,6 +14,7 @@ import { registerTemplateRoutes } from './features/consents/templates.routes.js'
 import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerAccessLogRoutes } from './features/access-log/access-log.routes.js';
 import { registerPatientDataRoutes } from './features/patient-data/patient-data.routes.js';
+import { registerShowcaseRoutes } from './features/showcase/showcase.routes.js';
 import { registerSettingsRoutes } from './features/settings/settings.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
 import { registerLandmarkRoutes } from './features/landmarks/landmarks.routes.js';
@@ -52,6 +53,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerSettingsRoutes(r, deps);
   registerAccessLogRoutes(r, deps);
   registerPatientDataRoutes(r, deps);
+  registerShowcaseRoutes(r, deps);
   registerHandoverRoutes(r, deps);
   registerConsentRoutes(r, deps);
   return r;

@@ -3,6 +3,7 @@ import path from 'node:path';
 import { DataSource } from 'typeorm';
 import { AuditEvent } from '../entities/audit-event.js';
 import { ClinicSettings } from '../entities/clinic-settings.js';
+import { ShowcaseExport, ShowcaseRequest } from '../entities/showcase.js';
 import { ConsentEvidence } from '../entities/consent-evidence.js';
 import { ConsentRecord } from '../entities/consent-record.js';
 import { ConsentTemplate } from '../entities/consent-template.js';
@@ -20,6 +21,7 @@ import { Session } from '../entities/session.js';
 import { ShotList, ShotListView } from '../entities/shot-list.js';
 import { User } from '../entities/user.js';
 import { Visit } from '../entities/visit.js';
+import { Showcase1765300000000 } from './migrations/1765300000000-showcase.js';
 import { Erasure1765200000000 } from './migrations/1765200000000-erasure.js';
 import { Settings1765100000000 } from './migrations/1765100000000-settings.js';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation.js';
@@ -29,10 +31,10 @@ import { Consents1764900000000 } from './migrations/1764900000000-consents.js';
 import { Treatments1765000000000 } from './migrations/1765000000000-treatments.js';
 import { ConsentOncePerHandover1764900000001 } from './migrations/1764900000001-consent-once-per-handover.js';
 
-export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo, MailLog, ConsentTemplate, HandoverSession, ConsentRecord, ConsentEvidence, Product, Consultation, Treatment, TreatmentLine, TreatmentDose, Reminder, ReferencePicture, ClinicSettings];
+export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo, MailLog, ConsentTemplate, HandoverSession, ConsentRecord, ConsentEvidence, Product, Consultation, Treatment, TreatmentLine, TreatmentDose, Reminder, ReferencePicture, ClinicSettings, ShowcaseRequest, ShowcaseExport];
 
 /** Listed explicitly (not globbed) so the same list works under tsx, vitest and a build. */
-export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Landmarks1764800000000, Consents1764900000000, ConsentOncePerHandover1764900000001, Treatments1765000000000, Settings1765100000000, Erasure1765200000000];
+export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Landmarks1764800000000, Consents1764900000000, ConsentOncePerHandover1764900000001, Treatments1765000000000, Settings1765100000000, Erasure1765200000000, Showcase1765300000000];
 
 /**
  * Builds the SQLite data source. `database` is a file path, or ":memory:" in tests.
