@@ -4,6 +4,7 @@ import { Spinner } from '../../components/ui/page';
 import { cn } from '../../lib/cn';
 import type { Me, Role } from '../../features/auth/types';
 import { PatientConsents } from '../../features/consents/components/patient-consents';
+import { MeasurementsPanel } from '../../features/landmarks/components/measurements-page';
 import { usePatient } from '../../features/patients/api/patients';
 import { PatientDataPanel } from '../../features/patient-data/components/patient-data-panel';
 import { PatientHeader } from '../../features/patients/components/patient-header';
@@ -16,6 +17,7 @@ const TABS: { to: string; label: string; roles: Role[] }[] = [
   { to: '', label: 'Overview', roles: ['admin', 'practitioner', 'coordinator'] },
   { to: 'timeline', label: 'Timeline', roles: ['admin', 'practitioner'] },
   { to: 'consents', label: 'Consents', roles: ['admin', 'practitioner', 'coordinator'] },
+  { to: 'measurements', label: 'Measurements', roles: ['admin', 'practitioner'] },
   { to: 'data', label: 'Data rights', roles: ['admin'] },
 ];
 
@@ -62,6 +64,11 @@ export function PatientOverview() {
 export function PatientConsentsTab() {
   const { patient } = usePatientContext();
   return <PatientConsents patient={patient} />;
+}
+
+export function PatientMeasurementsTab() {
+  const { me, patient } = usePatientContext();
+  return me.role === 'coordinator' ? null : <MeasurementsPanel patientId={patient.id} />;
 }
 
 export function PatientDataTab() {
