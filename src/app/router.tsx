@@ -15,7 +15,7 @@ export const router = createBrowserRouter([
   {
     element: <AppShell />,
     children: [
-      { index: true, lazy: () => import('../features/visits/components/clinic-day').then((m) => ({ Component: m.ClinicDayPage })) },
+      { index: true, lazy: () => import('./routes/clinic-day').then((m) => ({ Component: m.ClinicDayRoute })) },
       { path: 'patients', lazy: () => import('../features/patients/components/patients-page').then((m) => ({ Component: m.PatientsPage })) },
       {
         path: 'patients/:patientId',
@@ -35,6 +35,7 @@ export const router = createBrowserRouter([
       { path: 'admin/users', lazy: () => import('./routes/admin').then((m) => ({ Component: m.UsersRoute })) },
       { path: 'admin/access-log', lazy: () => import('./routes/admin').then((m) => ({ Component: m.AccessLogRoute })) },
       { path: 'admin/settings', lazy: () => import('./routes/admin').then((m) => ({ Component: m.SettingsRoute })) },
+      { path: 'admin/products', lazy: () => import('./routes/admin').then((m) => ({ Component: m.ProductsRoute })) },
       { path: 'admin/consent-forms', lazy: () => import('./routes/admin').then((m) => ({ Component: m.ConsentFormsRoute })) },
       { path: 'admin/outbox', lazy: () => import('./routes/admin').then((m) => ({ Component: m.OutboxRoute })) },
       { path: '*', element: <Navigate to="/" replace /> },

@@ -1,11 +1,12 @@
 import { Link } from 'react-router-dom';
-import { ChevronRight, FileSignature, Mail, ScrollText, Settings, UserCog, type LucideIcon } from 'lucide-react';
+import { ChevronRight, FileSignature, Mail, Package, ScrollText, Settings, UserCog, type LucideIcon } from 'lucide-react';
 import { Card } from '../../components/ui/card';
 import { PageHeader } from '../../components/ui/page';
 import { AccessLogPage } from '../../features/access-log/components/access-log-page';
 import { ConsentFormsPage } from '../../features/consents/components/consent-forms-page';
 import { OutboxPage } from '../../features/consents/components/outbox-page';
 import { SettingsPage } from '../../features/settings/components/settings-page';
+import { ProductsPage } from '../../features/treatments/components/products-page';
 import { UsersPage } from '../../features/users/components/users-page';
 import { RequireRole, useCurrentUser } from '../require-role';
 
@@ -16,6 +17,7 @@ export const ADMIN_SECTIONS: { to: string; label: string; description: string; i
   { to: '/admin/users', label: 'Users', description: 'Staff sign-ins and roles, deactivation, password resets.', icon: UserCog },
   { to: '/admin/access-log', label: 'Access log', description: 'Who saw or changed what, and when. Filter and export as CSV.', icon: ScrollText },
   { to: '/admin/settings', label: 'Clinic settings', description: 'Clinic name and time zone, automatic sign-out, reminders, retention, watermark.', icon: Settings },
+  { to: '/admin/products', label: 'Product catalogue', description: 'Fillers (mL) and neuromodulators (U) offered on the treatment record.', icon: Package },
 ];
 
 export function AdminHome() {
@@ -72,5 +74,11 @@ export const ConsentFormsRoute = () => (
 export const OutboxRoute = () => (
   <RequireRole roles={['admin']}>
     <OutboxPage />
+  </RequireRole>
+);
+
+export const ProductsRoute = () => (
+  <RequireRole roles={['admin']}>
+    <ProductsPage />
   </RequireRole>
 );

@@ -1,3 +1,4 @@
+import type { ReactNode } from 'react';
 import { Link, useSearchParams } from 'react-router-dom';
 import { ChevronLeft, ChevronRight } from 'lucide-react';
 import { Button } from '../../../components/ui/button';
@@ -15,8 +16,11 @@ const localToday = () => {
 };
 const shift = (day: string, by: number) => new Date(Date.parse(`${day}T12:00:00Z`) + by * 86_400_000).toISOString().slice(0, 10);
 
-/** Today's visits per practitioner: the clinic day overview. */
-export function ClinicDayPage() {
+/**
+ * Today's visits per practitioner: the clinic day overview. Route files add what other features know about the
+ * day through the slots (e.g. open items under each visit, reminders below).
+ */
+export function ClinicDayPage({ visitExtra, footer }: { visitExtra?: (visitId: string, date: string) => ReactNode; footer?: (date: string) => ReactNode } = {}) {
   const [params, setParams] = useSearchParams();
   const date = params.get('date') ?? localToday();
   const { data, isPending, error } = useClinicDay(date);
@@ -69,6 +73,7 @@ export function ClinicDayPage() {
                           <StatusBadge status={v.status} />
                           <span className="font-mono text-xs text-ink-faint">{v.patient?.code}</span>
                         </span>
+                        {visitExtra?.(v.id, date)}
                       </span>
                     </Link>
                   </li>
@@ -78,6 +83,7 @@ export function ClinicDayPage() {
           ))}
         </div>
       )}
+      {footer?.(date)}
     </>
   );
 }
