@@ -9,6 +9,8 @@ export interface Visit {
   startsAt: string;
   kind: VisitKind;
   status: VisitStatus;
+  /** The shot list whose views are photographed at this visit. */
+  shotListId: string;
   notes?: string;
   patient?: { id: string; code: string; firstName: string; lastName: string };
   createdAt: string;
