@@ -1,5 +1,6 @@
 import { useParams } from 'react-router-dom';
 import { VisitOpenItems } from '../../features/consents/components/open-items';
+import { VisitPhotosCard } from '../../features/photos/components/visit-photos-card';
 import { ConsultationForm } from '../../features/treatments/components/consultation-form';
 import { ScreeningReviewCard } from '../../features/treatments/components/screening-review';
 import { TreatmentEditor } from '../../features/treatments/components/treatment-editor';
@@ -20,6 +21,7 @@ export function VisitRoute() {
       {clinical && (
         <>
           <ScreeningReviewCard visitId={visitId} />
+          <VisitPhotosCard visitId={visitId} shotListId={visit.shotListId} />
           <ConsultationForm key={`c-${visitId}`} visitId={visitId} defaultOpen={visit.kind === 'consultation'} />
           {visit.kind !== 'consultation' && <TreatmentEditor key={`t-${visitId}`} visitId={visitId} />}
         </>
