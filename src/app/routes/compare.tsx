@@ -1,6 +1,6 @@
 import { useParams } from 'react-router-dom';
 import { Notice } from '../../components/ui/notice';
-import { Spinner } from '../../components/ui/page';
+import { EmptyState, Spinner } from '../../components/ui/page';
 import { CompareScreen } from '../../features/compare/components/compare-screen';
 import { PatientTimeline } from '../../features/compare/components/patient-timeline';
 import { usePatient } from '../../features/patients/api/patients';
@@ -9,17 +9,16 @@ import { usePatientContext } from './patient';
 
 /** The timeline tab of the patient page: clinical photos, so clinicians only (the server refuses the rest anyway). */
 export function PatientTimelineTab() {
-  const { patient } = usePatientContext();
+  const { me, patient } = usePatientContext();
+  if (me.role === 'coordinator') return <EmptyState title="Not available for your role">Clinical photos are for practitioners and admins.</EmptyState>;
   return (
-    <RequireRole roles={['admin', 'practitioner']}>
-      <PatientTimeline
-        patientId={patient.id}
-        compareHref={(q) => {
-          const qs = new URLSearchParams(Object.entries(q).filter((e): e is [string, string] => !!e[1])).toString();
-          return `/patients/${patient.id}/compare${qs ? `?${qs}` : ''}`;
-        }}
-      />
-    </RequireRole>
+    <PatientTimeline
+      patientId={patient.id}
+      compareHref={(q) => {
+        const qs = new URLSearchParams(Object.entries(q).filter((e): e is [string, string] => !!e[1])).toString();
+        return `/patients/${patient.id}/compare${qs ? `?${qs}` : ''}`;
+      }}
+    />
   );
 }
 

@@ -1,3 +1,4 @@
+import { useRef } from 'react';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { Navigate, useNavigate } from 'react-router-dom';
 import { Spinner } from '../../components/ui/page';
@@ -16,6 +17,9 @@ export function ReviewRoute() {
   const me = useMe();
   const review = useReview(!!me.data);
   const active = review.data?.active ? review.data : null;
+  // Where leaving review mode goes: back to the comparison it was started from.
+  const back = useRef<string | null>(null);
+  if (active) back.current = `/patients/${active.patientId}/compare?view=${encodeURIComponent(active.setup.view)}`;
   const patient = useQuery({ ...patientQuery(active?.patientId ?? ''), enabled: !!active });
   const navigate = useNavigate();
   const qc = useQueryClient();
@@ -33,16 +37,13 @@ export function ReviewRoute() {
 
   if (me.isPending || review.isPending) return <Spinner label="Opening review" />;
   if (!me.data) return <Navigate to="/sign-in" replace />;
-  if (!active) return <Navigate to="/" replace />;
+  if (!active) return <Navigate to={back.current ?? '/'} replace />;
   if (!patient.data) return <div className="min-h-dvh bg-photo-surround-deep" />;
   return (
     <ReviewScreen
       patient={patient.data}
       setup={active.setup}
-      onLeft={() => {
-        leaveFullscreen();
-        navigate(`/patients/${active.patientId}/compare?view=${encodeURIComponent(active.setup.view)}`, { replace: true });
-      }}
+      onLeft={leaveFullscreen}
       onSignedOut={signedOut}
     />
   );

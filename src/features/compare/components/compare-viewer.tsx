@@ -1,4 +1,4 @@
-import type { ReactNode } from 'react';
+import { useLayoutEffect, useRef, useState, type ReactNode } from 'react';
 import * as Slider from 'react-compare-slider/components';
 import { useReactCompareSlider } from 'react-compare-slider/hooks';
 import { cn } from '../../../lib/cn';
@@ -58,12 +58,15 @@ export function CompareViewer({
   );
   const over = (s: Side) => (overlay && s.photo && s.source ? overlay(s.photo, s.source) : undefined);
 
+  const ratio = baseline.source ? baseline.source.width / baseline.source.height : followUp.source ? followUp.source.width / followUp.source.height : null;
+  const { ref, maxHeight } = useCapHeight<HTMLDivElement>(ratio, mode === 'side-by-side' ? 2 : 1);
+
   if (mode === 'strip') {
     return <Strip items={strip} viewLabel={viewLabel} baselineId={baseline.visit?.id} followUpId={followUp.visit?.id} onPick={onPick} overlay={overlay} className={className} tone={tone} />;
   }
   if (mode === 'slider') {
     return (
-      <figure className={cn('flex min-h-0 flex-col', className)} aria-label={`${viewLabel}: slider between baseline and follow-up`}>
+      <figure ref={ref} style={{ maxHeight }} className={cn('flex min-h-0 flex-col', className)} aria-label={`${viewLabel}: slider between baseline and follow-up`}>
         <SliderPair baseline={baseline} followUp={followUp} viewLabel={viewLabel} over={over} />
         <figcaption className={cn('flex justify-between gap-2 px-1 pt-2 text-sm', tone === 'dark' ? 'text-white/90' : 'text-ink-muted')}>
           <span>
@@ -77,7 +80,7 @@ export function CompareViewer({
     );
   }
   return (
-    <div className={cn('grid min-h-0 grid-cols-2 gap-2', className)}>
+    <div ref={ref} style={{ maxHeight }} className={cn('grid min-h-0 grid-cols-2 gap-2', className)}>
       {[baseline, followUp].map((s) => (
         <figure key={s.role} className="flex min-h-0 flex-col">
           <PhotoFrame source={s.source} alt={sideAlt(viewLabel, s)} eager className="min-h-0 flex-1 rounded-lg" overlay={over(s)} />
@@ -86,6 +89,25 @@ export function CompareViewer({
       ))}
     </div>
   );
+}
+
+/**
+ * No taller than the photos need at the available width (plus their captions), so a tall screen does not wrap a
+ * photo in bands of grey.
+ */
+function useCapHeight<T extends HTMLElement>(ratio: number | null, across: number) {
+  const ref = useRef<T>(null);
+  const [maxHeight, setMaxHeight] = useState<number | undefined>(undefined);
+  useLayoutEffect(() => {
+    const el = ref.current;
+    if (!el || !ratio) return;
+    const fit = () => setMaxHeight(Math.ceil((el.clientWidth - (across - 1) * 8) / across / ratio + 36));
+    fit();
+    const ro = new ResizeObserver(fit);
+    ro.observe(el);
+    return () => ro.disconnect();
+  }, [ratio, across]);
+  return { ref, maxHeight };
 }
 
 /**
@@ -167,8 +189,6 @@ function Strip({
             />
             <p className={cn('px-1 pt-2 text-sm', tone === 'dark' ? 'text-white/90' : 'text-ink-muted')}>
               <span className={cn('font-semibold', tone === 'dark' ? 'text-white' : 'text-ink')}>{formatDate(it.visit.startsAt)}</span> · {KIND_LABEL[it.visit.kind]}
-              {isBase && <span className="ml-1 font-semibold"> · Baseline</span>}
-              {isFollow && <span className="ml-1 font-semibold"> · Follow-up</span>}
             </p>
             {onPick && (
               <div className="mt-1 grid grid-cols-2 gap-1">

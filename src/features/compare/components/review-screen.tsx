@@ -78,7 +78,7 @@ export function ReviewScreen({ patient, setup, onLeft, onSignedOut }: { patient:
               followUp={s.followUp}
               strip={s.strip}
               overlay={s.landmarks ? (photo) => overlayFor(pair.data, photo, s.aligned) : undefined}
-              className="h-[max(20rem,calc(100dvh-10rem))]"
+              className="h-[max(20rem,calc(100dvh-15rem))]"
             />
             {pair.data && (
               <div className="mx-auto max-w-3xl pt-2">

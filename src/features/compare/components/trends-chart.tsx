@@ -63,7 +63,8 @@ export default function TrendsChart({ series, viewKey, timeline }: { series: Mea
   const hasBars = treated.length > 0;
   const target = series.target?.value ?? null;
   const ratios = data.map((d) => d.ratio).filter((x): x is number => typeof x === 'number');
-  const ratioDomain: [number, number] = [Math.floor(Math.min(...ratios, target ?? Infinity, 1) * 10) / 10 - 0.1, Math.ceil(Math.max(...ratios, target ?? 0) * 10) / 10 + 0.1];
+  const span = [...ratios, ...(target ? [target] : [])];
+  const ratioDomain: [number, number] = [Math.max(0, Math.floor(Math.min(...span) * 10) / 10 - 0.1), Math.ceil(Math.max(...span) * 10) / 10 + 0.1];
   const axis = { fontSize: 12, fill: c.muted };
 
   return (
