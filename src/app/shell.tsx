@@ -26,7 +26,7 @@ export function AppShell() {
   const qc = useQueryClient();
   const logout = useLogout();
   // A reload or the back button during review mode returns to it: the server keeps it in the session.
-  const review = useReview(!!me);
+  const review = useReview(!!me && me.role !== 'coordinator');
 
   useEffect(
     () =>

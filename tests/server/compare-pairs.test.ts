@@ -9,6 +9,7 @@ import { MailLog } from '../../server/entities/mail-log.js';
 import { Patient } from '../../server/entities/patient.js';
 import { Photo } from '../../server/entities/photo.js';
 import type { StoredLandmarks } from '../../server/features/landmarks/landmarks.schemas.js';
+import { alignmentWorkerFor } from '../../server/features/landmarks/alignment-worker.js';
 import { measureLips } from '../../server/media/measurements.js';
 import { estimatePose } from '../../server/media/pose.js';
 import type { Point } from '../../server/media/umeyama.js';
@@ -92,6 +93,8 @@ beforeAll(async () => {
   turned = await photoAt(patient.id, 10, 'frontal-rest', 3);
   unaligned = await photoAt(patient.id, 5, 'frontal-rest', 4);
   lips = await photoAt(patient.id, 20, 'lips-rest', 5);
+  // Let the automatic step finish with these faceless test images before the landmarks are written by hand.
+  await alignmentWorkerFor(t.deps).idle();
   await landmark(base.photoId, face(20, 40));
   await landmark(follow.photoId, face(30, 40));
   // Nose tip 40 px towards the image's right of the eye midpoint: about 22° of yaw (pose.ts model), far beyond 5°.
@@ -99,6 +102,29 @@ beforeAll(async () => {
   await landmark(unaligned.photoId, face(30, 40), 'needs-landmarks');
 });
 afterAll(() => t.close());
+
+describe('pairs of a view', () => {
+  it('lists the photos of one view in time order, never another view, with alignment state and warnings', async () => {
+    const res = await prac.get(`/api/patients/${patient.id}/pairs`).query({ view: 'frontal-rest' });
+    expect(res.status).toBe(200);
+    const photos = res.body.photos as { photoId: string; visitId: string; visitStartsAt: string; alignmentState: string; warnings: { code: string }[] }[];
+    // Visits 60, 20, 10 and 5 days ago: oldest first. The lips close-up of the same day is not among them.
+    expect(photos.map((p) => p.photoId)).toEqual([base.photoId, follow.photoId, turned.photoId, unaligned.photoId]);
+    expect(photos.map((p) => p.visitStartsAt)).toEqual([...photos.map((p) => p.visitStartsAt)].sort());
+    expect(photos.map((p) => p.photoId)).not.toContain(lips.photoId);
+    expect(photos.map((p) => p.alignmentState)).toEqual(['aligned', 'aligned', 'aligned', 'needs-landmarks']);
+    expect(res.body.baselinePhotoId).toBe(base.photoId);
+    expect(photos[2].warnings.map((w) => w.code)).toEqual(expect.arrayContaining(['yaw-view', 'yaw-baseline']));
+    expect(photos[1].warnings.map((w) => w.code)).not.toContain('yaw-baseline');
+    const other = await prac.get(`/api/patients/${patient.id}/pairs`).query({ view: 'lips-rest' });
+    expect(other.body.photos.map((p: { photoId: string }) => p.photoId)).toEqual([lips.photoId]);
+  });
+
+  it('is closed to the front desk', async () => {
+    const desk = (await signedIn(t, 'coordinator')).client;
+    expect((await desk.get(`/api/patients/${patient.id}/pairs`).query({ view: 'frontal-rest' })).status).toBe(403);
+  });
+});
 
 const compare = (a: string, b: string) => prac.get(`/api/patients/${patient.id}/compare`).query({ baseline: a, followUp: b });
 

@@ -1,6 +1,6 @@
 import type { Request, Router } from 'express';
 import { z } from 'zod';
-import { allow, CLINICAL, currentUser, STAFF } from '../../auth/access.js';
+import { allow, CLINICAL, currentUser } from '../../auth/access.js';
 import { verifyPassword } from '../../auth/passwords.js';
 import type { Deps } from '../../deps.js';
 import { Patient } from '../../entities/patient.js';
@@ -53,13 +53,13 @@ export function registerReviewRoutes(r: Router, { db }: Deps): void {
     res.status(201).json({ active: true, patientId: review.patientId, startedAt: review.startedAt, setup: review.setup });
   });
 
-  r.get('/api/review', allow(...STAFF), (req, res) => {
+  r.get('/api/review', allow(...CLINICAL), (req, res) => {
     const review = req.session.review;
     res.json(review ? { active: true, patientId: review.patientId, startedAt: review.startedAt, setup: review.setup } : { active: false });
   });
 
   const exit = validate({ body: exitReviewSchema });
-  r.post('/api/review/exit', allow(...STAFF), exit, async (req, res) => {
+  r.post('/api/review/exit', allow(...CLINICAL), exit, async (req, res) => {
     const { body } = parsed(req, exit);
     const review = req.session.review;
     if (!review) throw conflict('Review mode is not on.', undefined, 'NOT_IN_REVIEW');
