@@ -1,0 +1,111 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { browserAvailable, demoUser, launchBrowser, newTabletPage, screenshot, signIn, startServer, TABLET_PORTRAIT, type RunningApp } from './harness.js';
+
+/** A JSON call from inside the page, with the CSRF token the app would send. */
+async function call<T>(page: Page, method: string, url: string, body?: unknown): Promise<{ status: number; body: T }> {
+  return page.evaluate(
+    async ({ method, url, body }) => {
+      const csrf = (await (await fetch('/api/auth/csrf')).json()).token as string;
+      const res = await fetch(url, { method, headers: { 'Content-Type': 'application/json', 'X-CSRF-Token': csrf }, body: body === undefined ? undefined : JSON.stringify(body) });
+      return { status: res.status, body: res.status === 204 ? null : await res.json() };
+    },
+    { method, url, body },
+  ) as Promise<{ status: number; body: T }>;
+}
+
+describe.skipIf(!browserAvailable)('showcase in Chromium: request, clear, export, withdraw', () => {
+  let app: RunningApp;
+  let browser: Browser;
+
+  beforeAll(async () => {
+    app = await startServer({ TWINFRAME_DEMO_PHOTOS: '1' });
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await app?.stop();
+  });
+
+  it('runs the whole permission chain and the withdrawal cascade', { timeout: 300_000 }, async () => {
+    const admin = await newTabletPage(browser);
+    await signIn(admin.page, app.url, demoUser('admin').email, demoUser('admin').password);
+    await admin.page.getByRole('heading', { name: 'Clinic day' }).waitFor();
+    const found = await call<{ items: { id: string }[] }>(admin.page, 'GET', '/api/patients?q=LR-0001');
+    const patientId = found.body.items[0].id;
+
+    // Demo photos are stored in the background after start: wait for this patient's frontal views.
+    for (let i = 0; ; i++) {
+      const photos = await call<{ viewKey: string; state: string }[]>(admin.page, 'GET', `/api/patients/${patientId}/photos`);
+      if (photos.body.filter((p) => p.viewKey === 'frontal-rest' && p.state === 'captured').length >= 2) break;
+      if (i > 120) throw new Error('demo photos did not arrive');
+      await admin.page.waitForTimeout(1000);
+    }
+
+    // The patient signs the showcase consent on a second device (a code, as in the waiting room).
+    const forms = await call<{ id: string; kind: string; status: string }[]>(admin.page, 'GET', '/api/consent-templates');
+    const showcaseForm = forms.body.find((f) => f.kind === 'showcase' && f.status === 'published')!;
+    const started = await call<{ code: string }>(admin.page, 'POST', '/api/handovers', { patientId, templateIds: [showcaseForm.id], mode: 'second-device' });
+    expect(started.status).toBe(201);
+    const device = await newTabletPage(browser, TABLET_PORTRAIT);
+    await device.page.goto(`${app.url}/handover`);
+    expect((await call(device.page, 'POST', '/api/handover/claim', { code: started.body.code })).status).toBe(200);
+    const form = await call<{ forms: { templateId: string; questions: { id: string; type: string; flagWhen?: string[]; options?: string[] }[] }[] }>(device.page, 'GET', '/api/handover');
+    const answers = Object.fromEntries(form.body.forms[0].questions.map((q) => [q.id, q.type === 'yes-no' ? 'yes' : q.type === 'choice' ? q.options![0] : 'n/a']));
+    const signature = await device.page.evaluate(() => {
+      const c = Object.assign(document.createElement('canvas'), { width: 600, height: 200 });
+      const g = c.getContext('2d')!;
+      g.lineWidth = 5;
+      g.beginPath();
+      g.moveTo(30, 140);
+      g.bezierCurveTo(90, 30, 160, 180, 240, 80);
+      g.lineTo(560, 120);
+      g.stroke();
+      return c.toDataURL('image/png');
+    });
+    const signed = await call<{ consentId: string }>(device.page, 'POST', `/api/handover/forms/${showcaseForm.id}/sign`, {
+      answers,
+      channels: ['clinic-website'],
+      crop: 'lips-only',
+      signerName: 'Aurelie Fenwick',
+      signature,
+    });
+    expect(signed.status, JSON.stringify(signed.body)).toBe(201);
+    await device.context.close();
+
+    // The practitioner nominates a before/after pair from the patient's Showcase tab.
+    const practitioner = await newTabletPage(browser);
+    await signIn(practitioner.page, app.url, demoUser('practitioner').email, demoUser('practitioner').password);
+    await practitioner.page.getByRole('heading', { name: 'Clinic day' }).waitFor();
+    await practitioner.page.goto(`${app.url}/patients/${patientId}/showcase`);
+    await practitioner.page.getByText('for Clinic website').or(practitioner.page.getByText('Clinic website')).first().waitFor();
+    const p = practitioner.page;
+    await p.getByLabel('View').selectOption('frontal-rest');
+    const thumbs = p.getByRole('button', { name: /^Photo of / });
+    await thumbs.first().click();
+    await thumbs.last().click();
+    await p.getByRole('checkbox', { name: 'Clinic website' }).check();
+    await p.getByRole('button', { name: 'Request clearance' }).click();
+    await p.getByText('Request sent to the clinic admin for clearance.').waitFor();
+    await p.getByText('Awaiting clearance').first().waitFor();
+    await screenshot(p, 'showcase-patient-tab-1024x768');
+
+    // The admin clears it and exports it for the website.
+    await admin.page.goto(`${app.url}/admin/showcase`);
+    await admin.page.getByRole('button', { name: 'Clear for showcase' }).first().click();
+    await admin.page.getByRole('button', { name: 'Cleared' }).click();
+    await admin.page.getByRole('button', { name: 'Export for Clinic website' }).first().click();
+    await admin.page.getByRole('link', { name: 'composite' }).first().waitFor();
+    await screenshot(admin.page, 'showcase-queue-cleared-1024x768');
+
+    // The patient withdraws the showcase consent (recorded by staff); everything stops at once.
+    expect((await call(admin.page, 'POST', `/api/consents/${signed.body.consentId}/withdraw`, { reason: 'Patient phoned the clinic.' })).status).toBe(200);
+    await admin.page.getByRole('button', { name: 'Withdrawn' }).click();
+    await admin.page.getByText('Showcase consent withdrawn by the patient.').first().waitFor();
+    expect(await admin.page.getByRole('link', { name: 'composite' }).count()).toBe(0);
+    expect(await admin.page.getByRole('button', { name: /Export for/ }).count()).toBe(0);
+    await screenshot(admin.page, 'showcase-queue-withdrawn-1024x768');
+    await admin.context.close();
+    await practitioner.context.close();
+  });
+});
