@@ -1,5 +1,5 @@
 import { Link } from 'react-router-dom';
-import { ChevronRight, FileSignature, Mail, Package, ScrollText, Settings, UserCog, type LucideIcon } from 'lucide-react';
+import { Camera, ChevronRight, FileSignature, Mail, Megaphone, Package, ScrollText, Settings, UserCog, type LucideIcon } from 'lucide-react';
 import { Card } from '../../components/ui/card';
 import { PageHeader } from '../../components/ui/page';
 import { AccessLogPage } from '../../features/access-log/components/access-log-page';
@@ -7,6 +7,7 @@ import { ConsentFormsPage } from '../../features/consents/components/consent-for
 import { OutboxPage } from '../../features/consents/components/outbox-page';
 import { SettingsPage } from '../../features/settings/components/settings-page';
 import { ProductsPage } from '../../features/treatments/components/products-page';
+import { ClearanceQueue } from '../../features/showcase/components/clearance-queue';
 import { UsersPage } from '../../features/users/components/users-page';
 import { RequireRole, useCurrentUser } from '../require-role';
 
@@ -17,7 +18,9 @@ export const ADMIN_SECTIONS: { to: string; label: string; description: string; i
   { to: '/admin/users', label: 'Users', description: 'Staff sign-ins and roles, deactivation, password resets.', icon: UserCog },
   { to: '/admin/access-log', label: 'Access log', description: 'Who saw or changed what, and when. Filter and export as CSV.', icon: ScrollText },
   { to: '/admin/settings', label: 'Clinic settings', description: 'Clinic name and time zone, automatic sign-out, reminders, retention, watermark.', icon: Settings },
+  { to: '/admin/shot-lists', label: 'Shot lists', description: 'The standard views photographed at each visit, their order and positioning hints.', icon: Camera },
   { to: '/admin/products', label: 'Product catalogue', description: 'Fillers (mL) and neuromodulators (U) offered on the treatment record.', icon: Package },
+  { to: '/admin/showcase', label: 'Showcase clearance', description: 'Results nominated for marketing: clear, decline, export, and see withdrawals.', icon: Megaphone },
 ];
 
 export function AdminHome() {
@@ -80,5 +83,11 @@ export const OutboxRoute = () => (
 export const ProductsRoute = () => (
   <RequireRole roles={['admin']}>
     <ProductsPage />
+  </RequireRole>
+);
+
+export const ShowcaseRoute = () => (
+  <RequireRole roles={['admin']}>
+    <ClearanceQueue />
   </RequireRole>
 );

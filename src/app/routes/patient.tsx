@@ -7,6 +7,7 @@ import { PatientConsents } from '../../features/consents/components/patient-cons
 import { MeasurementsPanel } from '../../features/landmarks/components/measurements-page';
 import { usePatient } from '../../features/patients/api/patients';
 import { PatientDataPanel } from '../../features/patient-data/components/patient-data-panel';
+import { PatientShowcase } from '../../features/showcase/components/patient-showcase';
 import { PatientHeader } from '../../features/patients/components/patient-header';
 import type { Patient } from '../../features/patients/types';
 import { VisitList } from '../../features/visits/components/visit-list';
@@ -16,8 +17,10 @@ import { useCurrentUser } from '../require-role';
 const TABS: { to: string; label: string; roles: Role[] }[] = [
   { to: '', label: 'Overview', roles: ['admin', 'practitioner', 'coordinator'] },
   { to: 'timeline', label: 'Timeline', roles: ['admin', 'practitioner'] },
+  { to: 'photos', label: 'Photos', roles: ['admin', 'practitioner'] },
   { to: 'consents', label: 'Consents', roles: ['admin', 'practitioner', 'coordinator'] },
   { to: 'measurements', label: 'Measurements', roles: ['admin', 'practitioner'] },
+  { to: 'showcase', label: 'Showcase', roles: ['admin', 'practitioner'] },
   { to: 'data', label: 'Data rights', roles: ['admin'] },
 ];
 
@@ -74,4 +77,9 @@ export function PatientMeasurementsTab() {
 export function PatientDataTab() {
   const { me, patient } = usePatientContext();
   return me.role === 'admin' ? <PatientDataPanel patient={patient} /> : null;
+}
+
+export function PatientShowcaseTab() {
+  const { me, patient } = usePatientContext();
+  return <PatientShowcase patientId={patient.id} isAdmin={me.role === 'admin'} />;
 }
