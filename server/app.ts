@@ -22,6 +22,7 @@ import { registerPhotoRoutes } from './features/photos/photos.routes.js';
 import { registerClinicDayRoutes } from './features/clinic-day/clinic-day.routes.js';
 import { registerReminderRoutes } from './features/reminders/reminders.routes.js';
 import { registerProductRoutes } from './features/treatments/products.routes.js';
+import { registerReferencePictureRoutes } from './features/treatments/reference-pictures.routes.js';
 import { registerTreatmentRoutes } from './features/treatments/treatments.routes.js';
 import { registerUserRoutes } from './features/users/users.routes.js';
 import { registerVisitRoutes } from './features/visits/visits.routes.js';
@@ -48,6 +49,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerTemplateRoutes(r, deps);
   registerProductRoutes(r, deps);
   registerTreatmentRoutes(r, deps);
+  registerReferencePictureRoutes(r, deps);
   registerReminderRoutes(r, deps);
   registerClinicDayRoutes(r, deps);
   registerSettingsRoutes(r, deps);

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
+import sharp from 'sharp';
 import { browserAvailable, demoUser, launchBrowser, newTabletPage, screenshot, signIn, startServer, TABLET_LANDSCAPE, TABLET_PORTRAIT, type RunningApp } from './harness.js';
 import { VIEW_BOX, ZONE_TARGETS } from '../../src/features/treatments/components/lip-diagram.js';
 import type { ZoneKey } from '../../src/features/treatments/zones.js';
@@ -106,6 +107,33 @@ describe.skipIf(!browserAvailable)('treatment record in Chromium at tablet size'
     expect(await row.innerText()).toContain(due);
     await row.scrollIntoViewIfNeeded();
     await screenshot(page, 'clinic-day-reminders-1024x768');
+    await context.close();
+  });
+
+  it("records a consultation with goals, a target ratio, a staged plan and the patient's reference picture", async () => {
+    const { context, page } = await newTabletPage(browser, TABLET_LANDSCAPE);
+    await signIn(page, app.url, demoUser('practitioner').email, demoUser('practitioner').password);
+    await page.getByRole('heading', { name: 'Clinic day' }).waitFor();
+    const visit = await todaysVisit(page, 'consultation');
+    await page.goto(`${app.url}/visits/${visit.id}`);
+    await page.getByRole('heading', { name: 'Consultation' }).waitFor();
+    await page.getByRole('button', { name: 'More volume' }).click();
+    await page.getByRole('button', { name: "A more defined cupid's bow" }).click();
+    await page.getByLabel('In the patient’s words').fill('Fuller upper lip, still natural.');
+    await page.getByLabel('Upper slightly smaller (1:1.6)').check();
+    await page.getByRole('button', { name: 'Add stage' }).click();
+    await page.getByRole('button', { name: 'Add stage' }).click();
+    await page.getByLabel('Planned mL').first().fill('1');
+    await page.getByRole('button', { name: 'Save consultation' }).click();
+    await page.getByText(/^Saved /).waitFor();
+    const picture = await sharp({ create: { width: 600, height: 400, channels: 3, background: '#c98f7e' } }).jpeg().toBuffer();
+    await page.locator('input[type="file"]').setInputFiles({ name: 'lips-i-like.jpg', mimeType: 'image/jpeg', buffer: picture });
+    await page.getByRole('button', { name: /Open reference picture/ }).waitFor();
+    await page.getByRole('button', { name: 'Save consultation' }).evaluate((el) => el.scrollIntoView({ block: 'center' }));
+    await screenshot(page, 'consultation-1024x768');
+    const stored = await page.evaluate(async (id) => (await fetch(`/api/visits/${id}/consultation`)).json(), visit.id);
+    expect(stored).toMatchObject({ goals: ['more-volume', 'cupids-bow-definition'], targetRatio: '1:1.6' });
+    expect(stored.plan).toHaveLength(2);
     await context.close();
   });
 

@@ -109,6 +109,10 @@ export const EXPECTED: Record<string, Who[]> = {
   'POST /api/reminders/:id/cancel': STAFF,
   'GET /api/clinic-day/open-items': STAFF,
   'GET /api/treatment-settings': CLINICAL,
+  'POST /api/patients/:id/reference-pictures': CLINICAL,
+  'GET /api/patients/:id/reference-pictures': CLINICAL,
+  'GET /api/reference-pictures/:id/file': CLINICAL,
+  'DELETE /api/reference-pictures/:id': CLINICAL,
 };
 void CLINICAL;
 

@@ -22,7 +22,7 @@ export function VisitRoute() {
         <>
           <ScreeningReviewCard visitId={visitId} />
           <VisitPhotosCard visitId={visitId} shotListId={visit.shotListId} />
-          <ConsultationForm key={`c-${visitId}`} visitId={visitId} defaultOpen={visit.kind === 'consultation'} />
+          <ConsultationForm key={`c-${visitId}`} visitId={visitId} patientId={visit.patientId} defaultOpen={visit.kind === 'consultation'} />
           {visit.kind !== 'consultation' && <TreatmentEditor key={`t-${visitId}`} visitId={visitId} />}
         </>
       )}

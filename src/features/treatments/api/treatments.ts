@@ -1,5 +1,5 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { api, ApiError } from '../../../lib/api-client';
+import { api, ApiError, getCsrfToken, resetCsrf } from '../../../lib/api-client';
 import type {
   Consultation,
   ConsultationInput,
@@ -26,6 +26,7 @@ export const treatmentKeys = {
   followUps: () => [...treatmentKeys.all, 'follow-ups'] as const,
   reminders: (from: string, to: string) => [...treatmentKeys.followUps(), 'reminders', { from, to }] as const,
   openItems: (date: string) => [...treatmentKeys.followUps(), 'open-items', date] as const,
+  referencePictures: (patientId: string) => [...treatmentKeys.all, 'reference-pictures', patientId] as const,
 };
 
 /** A 404 means "nothing recorded yet", which the screens show as an empty form. */
@@ -152,4 +153,61 @@ export function useCancelReminder() {
     mutationFn: ({ id, reason }: { id: string; reason: string }) => cancelReminder(id, reason),
     onSuccess: () => qc.invalidateQueries({ queryKey: treatmentKeys.followUps() }),
   });
+}
+
+export interface ReferencePictureView {
+  id: string;
+  patientId: string;
+  visitId: string | null;
+  caption: string;
+  width: number;
+  height: number;
+  uploadedAt: string;
+}
+
+export const referencePictureUrl = (id: string, variant: 'display' | 'thumb') => `/api/reference-pictures/${id}/file?variant=${variant}`;
+export const getReferencePictures = (patientId: string, signal?: AbortSignal) => api<ReferencePictureView[]>(`/api/patients/${patientId}/reference-pictures`, { signal });
+export const removeReferencePicture = (id: string) => api<void>(`/api/reference-pictures/${id}`, { method: 'DELETE' });
+
+/** Multipart upload of one picture (fetch: no progress bar needed for a small reference picture). */
+export async function uploadReferencePicture(patientId: string, input: { file: File; caption: string; visitId?: string }): Promise<ReferencePictureView> {
+  const send = async (retry: boolean): Promise<ReferencePictureView> => {
+    const form = new FormData();
+    form.append('caption', input.caption);
+    if (input.visitId) form.append('visitId', input.visitId);
+    form.append('picture', input.file, input.file.name);
+    const res = await fetch(`/api/patients/${patientId}/reference-pictures`, {
+      method: 'POST',
+      headers: { 'X-CSRF-Token': await getCsrfToken(), Accept: 'application/json' },
+      body: form,
+      credentials: 'same-origin',
+    });
+    const body = (await res.json().catch(() => null)) as { error?: { code: string; message: string; details?: unknown } } | ReferencePictureView | null;
+    if (res.ok) return body as ReferencePictureView;
+    const e = (body as { error?: { code: string; message: string; details?: unknown } } | null)?.error;
+    const err = new ApiError(res.status, e?.code ?? `HTTP_${res.status}`, e?.message ?? `The server answered ${res.status}.`, e?.details);
+    if (err.code === 'CSRF_INVALID' && retry) {
+      resetCsrf();
+      return send(false);
+    }
+    throw err;
+  };
+  return send(true);
+}
+
+export const referencePicturesQuery = (patientId: string) =>
+  queryOptions({ queryKey: treatmentKeys.referencePictures(patientId), queryFn: ({ signal }) => getReferencePictures(patientId, signal) });
+export const useReferencePictures = (patientId: string) => useQuery(referencePicturesQuery(patientId));
+
+export function useUploadReferencePicture(patientId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: { file: File; caption: string; visitId?: string }) => uploadReferencePicture(patientId, input),
+    onSuccess: () => qc.invalidateQueries({ queryKey: treatmentKeys.referencePictures(patientId) }),
+  });
+}
+
+export function useRemoveReferencePicture(patientId: string) {
+  const qc = useQueryClient();
+  return useMutation({ mutationFn: removeReferencePicture, onSuccess: () => qc.invalidateQueries({ queryKey: treatmentKeys.referencePictures(patientId) }) });
 }

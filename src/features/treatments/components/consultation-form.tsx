@@ -10,6 +10,7 @@ import { ApiError } from '../../../lib/api-client';
 import { cn } from '../../../lib/cn';
 import { formatDateTime } from '../../../lib/format';
 import { useConsultation, useSaveConsultation } from '../api/treatments';
+import { ReferencePictures } from './reference-pictures';
 import { GOAL_LABELS, type Consultation, type ConsultationInput, type PlanStage } from '../types';
 
 const RATIOS: { key: NonNullable<Consultation['targetRatio']>; label: string }[] = [
@@ -20,7 +21,7 @@ const RATIOS: { key: NonNullable<Consultation['targetRatio']>; label: string }[]
 ];
 
 /** Goals, the chosen upper:lower ratio and a staged plan, recorded at the consultation. */
-export function ConsultationForm({ visitId, defaultOpen }: { visitId: string; defaultOpen: boolean }) {
+export function ConsultationForm({ visitId, patientId, defaultOpen }: { visitId: string; patientId: string; defaultOpen: boolean }) {
   const { data, isPending, error } = useConsultation(visitId);
   const save = useSaveConsultation(visitId);
   const [open, setOpen] = useState(defaultOpen);
@@ -149,6 +150,7 @@ export function ConsultationForm({ visitId, defaultOpen }: { visitId: string; de
               Save consultation
             </Button>
           </div>
+          <ReferencePictures patientId={patientId} visitId={visitId} />
         </div>
       )}
     </Card>
