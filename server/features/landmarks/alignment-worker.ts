@@ -28,8 +28,11 @@ export class AlignmentWorker {
 
   constructor(private readonly deps: PipelineDeps) {}
 
-  /** Queues a photo; resolves when a run that started after this call has finished (successfully or not). */
-  enqueue(photoId: string, displayBytes?: Buffer): Promise<void> {
+  /**
+   * Queues a photo; resolves when a run that started after this call has finished (successfully or not). `urgent`
+   * puts it first: someone is waiting on the screen, not just a backlog after a restart.
+   */
+  enqueue(photoId: string, displayBytes?: Buffer, opts: { urgent?: boolean } = {}): Promise<void> {
     if (displayBytes) this.bytes.set(photoId, displayBytes);
     let p = this.pending.get(photoId);
     if (!p) {
@@ -39,6 +42,7 @@ export class AlignmentWorker {
       this.pending.set(photoId, p);
       this.queue.push(photoId);
     }
+    if (opts.urgent) this.queue = [photoId, ...this.queue.filter((id) => id !== photoId)];
     this.kick();
     return p.promise;
   }

@@ -121,7 +121,7 @@ export function registerLandmarkRoutes(r: Router, deps: Deps): void {
         details: landmarks ? { points: landmarks.points ? landmarks.points.filter(Boolean).length : 0, anchors: landmarks.anchors?.length ?? 0, ruler: !!landmarks.ruler } : {},
       });
     });
-    await worker.enqueue(photo.id);
+    await worker.enqueue(photo.id, undefined, { urgent: true });
     const fresh = await loadPhoto(photo.id);
     return landmarkView(fresh, await viewOfPhoto(db, fresh));
   }
