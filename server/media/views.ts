@@ -69,17 +69,24 @@ const lipsAnchors: readonly AnchorDef[] = [
  * anchor on the lips would hide the very change being photographed); and they span the face from the eyes to the
  * chin, so three points fix rotation and scale well and the least-squares fit averages out small placement errors.
  * Near eye: with the patient's left side shown, that is the left eye's outer corner (45); with the right side, 36.
- * Frame positions: eye corner and chin on one vertical line, the nose tip ahead of it, towards the side the
- * patient faces on screen (image left for a left view, where the face points to the image's left).
+ * Frame positions follow a rough average head (from memory, in mm from the outer eye corner: nose tip 45 ahead and
+ * 40 below, chin 35 ahead and 110 below), turned by the view's angle and seen from afar (ahead-offsets × sin of the
+ * turn, plus the eye corner's half-width × cos): 4.4 px per mm. The exact figures matter little: every visit of a
+ * view is fitted to the same three positions, so pairs line up; they only keep the head upright and centred.
+ * "Ahead" points to the side the patient faces on screen: the image's left for a left view.
  */
 const SIDE_FRAME = { width: 1200, height: 1500 };
-function sideAnchors(side: 'left' | 'right', noseAhead: number): readonly AnchorDef[] {
+const PX_PER_MM = 4.4;
+function sideAnchors(side: 'left' | 'right', turnDeg: number): readonly AnchorDef[] {
   const dir = side === 'left' ? -1 : 1;
-  const eyeX = 600 - dir * 60;
+  const t = (turnDeg * Math.PI) / 180;
+  // The eye corner's own offset towards the back of the head (half the outer-corner width × cos of the turn).
+  const ahead = (mm: number) => Math.round(dir * PX_PER_MM * (mm * Math.sin(t) + 45 * Math.cos(t)));
+  const eyeX = 600 - dir * 110;
   return [
     { key: 'near-eye-outer-corner', label: `Outer corner of the patient's ${side} eye`, from68: [side === 'left' ? 45 : 36], frame: [eyeX, 600] },
-    { key: 'nose-tip', label: 'Tip of the nose', from68: [30], frame: [eyeX + dir * noseAhead, 800] },
-    { key: 'chin', label: 'Chin (lowest front point)', from68: [8], frame: [eyeX, 1080] },
+    { key: 'nose-tip', label: 'Tip of the nose', from68: [30], frame: [eyeX + ahead(45), 600 + 40 * PX_PER_MM] },
+    { key: 'chin', label: 'Chin (lowest front point)', from68: [8], frame: [eyeX + ahead(35), 600 + 110 * PX_PER_MM] },
   ];
 }
 
@@ -88,10 +95,10 @@ export const VIEWS: Readonly<Record<ViewKey, ViewDef>> = {
   'frontal-smile': { key: 'frontal-smile', kind: 'face', label: 'Frontal, smiling', expectedYaw: 0, yawTolerance: 10, measured: false, frame: FRONTAL_FRAME, anchors: frontalAnchors },
   'lips-rest': { key: 'lips-rest', kind: 'lips', label: 'Lips close-up, at rest', expectedYaw: 0, yawTolerance: 10, measured: true, frame: LIPS_FRAME, anchors: lipsAnchors },
   'lips-pucker': { key: 'lips-pucker', kind: 'lips', label: 'Lips close-up, pucker', expectedYaw: 0, yawTolerance: 10, measured: false, frame: LIPS_FRAME, anchors: lipsAnchors },
-  'oblique-left': { key: 'oblique-left', kind: 'face', label: 'Oblique left 45°', expectedYaw: 45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 200) },
-  'oblique-right': { key: 'oblique-right', kind: 'face', label: 'Oblique right 45°', expectedYaw: -45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 200) },
-  'lateral-left': { key: 'lateral-left', kind: 'profile', label: 'Lateral left 90°', expectedYaw: 90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 300) },
-  'lateral-right': { key: 'lateral-right', kind: 'profile', label: 'Lateral right 90°', expectedYaw: -90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 300) },
+  'oblique-left': { key: 'oblique-left', kind: 'face', label: 'Oblique left 45°', expectedYaw: 45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 45) },
+  'oblique-right': { key: 'oblique-right', kind: 'face', label: 'Oblique right 45°', expectedYaw: -45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 45) },
+  'lateral-left': { key: 'lateral-left', kind: 'profile', label: 'Lateral left 90°', expectedYaw: 90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 90) },
+  'lateral-right': { key: 'lateral-right', kind: 'profile', label: 'Lateral right 90°', expectedYaw: -90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 90) },
 };
 
 export function isViewKey(v: string): v is ViewKey {
