@@ -9,9 +9,9 @@ export type ShotListViewDto = ShotListDto['views'][number];
 export type PatientPhotoDto = PhotoDto & { visitStartsAt?: string };
 
 export const ANCHOR_LABEL: Record<AnchorKind, string> = {
-  face: 'Whole face (automatic, eyes)',
-  lips: 'Lips close-up (automatic, mouth corners)',
-  profile: 'Profile (points placed by hand)',
+  face: 'Face, automatic',
+  lips: 'Lips, automatic',
+  profile: 'Profile, by hand',
 };
 
 /** The upload limit the server enforces (40 MB); checked here too so a too-large file fails at once. */

@@ -119,7 +119,7 @@ export function CameraDialog({
       <div className="space-y-3">
         {hint && <p className="text-sm text-ink-muted">{hint}</p>}
         {error && <Notice tone="danger">{error}</Notice>}
-        <div className="relative grid h-[min(60dvh,40rem)] place-items-center overflow-hidden rounded-lg bg-photo-surround-deep">
+        <div className="relative grid h-[min(46dvh,40rem)] place-items-center overflow-hidden rounded-lg bg-photo-surround-deep">
           <video ref={video} playsInline muted aria-label="Live camera picture" className={shot ? 'hidden' : 'h-full w-full object-contain'} />
           {!shot && overlayUrl && showOverlay && live && (
             <img

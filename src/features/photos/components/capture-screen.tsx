@@ -96,6 +96,9 @@ export function CaptureScreen({ visit, onVisitChanged }: { visit: CaptureVisit; 
       </div>
       {setList.error && <Notice tone="danger">{setList.error.message}</Notice>}
 
+      <BulkUpload views={views} filledKeys={new Set(current.keys())} onUpload={(files) => queue.add(files.map((f) => ({ file: f.file, fileName: f.file.name, view: f.view })))} />
+      <UploadList items={queue.items} viewLabel={label} onRetry={queue.retry} onDismiss={queue.dismiss} onClear={queue.clearFinished} />
+
       <div className="grid grid-cols-2 gap-3 md:grid-cols-3 lg:grid-cols-4">
         {views.map((v) => (
           <ViewSlot
@@ -112,9 +115,6 @@ export function CaptureScreen({ visit, onVisitChanged }: { visit: CaptureVisit; 
           />
         ))}
       </div>
-
-      <UploadList items={queue.items} viewLabel={label} onRetry={queue.retry} onDismiss={queue.dismiss} onClear={queue.clearFinished} />
-      <BulkUpload views={views} filledKeys={new Set(current.keys())} onUpload={(files) => queue.add(files.map((f) => ({ file: f.file, fileName: f.file.name, view: f.view })))} />
 
       <p className="text-sm text-ink-muted">
         Every stored photo is turned upright and loses its location, camera and owner data before it is kept. A retake keeps the earlier photo as

@@ -12,7 +12,7 @@ export function PhotoViewer({ photo, viewLabel, onClose }: { photo: PhotoDto | n
     <Dialog open={!!photo} onClose={onClose} title={viewLabel} className="w-[min(64rem,calc(100vw-1rem))]">
       {photo && (
         <div className="space-y-3">
-          <div className="grid h-[min(70dvh,48rem)] place-items-center rounded-lg bg-photo-surround">
+          <div className="grid h-[min(58dvh,48rem)] place-items-center rounded-lg bg-photo-surround">
             {display && <img src={display} alt={`${viewLabel}, ${formatDateTime(photo.capturedAt)}`} className="max-h-full max-w-full object-contain" />}
           </div>
           <dl className="grid gap-x-6 gap-y-1 text-sm sm:grid-cols-2">

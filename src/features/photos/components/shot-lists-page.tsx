@@ -144,7 +144,7 @@ export function ShotListsPage() {
                   className="flex min-h-11 w-full items-center justify-between gap-2 rounded-lg px-3 text-left hover:bg-paper-sunk aria-[current=true]:bg-paper-sunk aria-[current=true]:font-semibold"
                 >
                   <span className="truncate">{l.name}</span>
-                  <span className="text-sm text-ink-faint">{l.archived ? 'archived' : `${l.views.length} views`}</span>
+                  <span className="text-sm text-ink-faint">{l.archived ? 'archived' : `${l.views.length} view${l.views.length === 1 ? '' : 's'}`}</span>
                 </button>
               </li>
             ))}
