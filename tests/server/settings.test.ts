@@ -29,6 +29,12 @@ describe('clinic settings', () => {
     expect(expires - Date.now()).toBeLessThanOrEqual(10 * 60_000 + 1000);
   });
 
+  it('is what the clinic day and the session use from then on', async () => {
+    await admin.patch('/api/settings').send({ timeZone: 'America/New_York', clinicName: 'Harbour Lane Aesthetics' });
+    expect((await admin.get('/api/clinic-day')).body.timeZone).toBe('America/New_York');
+    expect((await admin.get('/api/auth/me')).body.idleMinutes).toBe(10);
+  });
+
   it('refuses out-of-range and unknown values with nothing saved', async () => {
     const before = await t.db.getRepository(ClinicSettings).findOneBy({ id: 'clinic' });
     for (const body of [{ idleMinutes: 600 }, { reviewReminderDays: 60 }, { timeZone: 'Mars/Olympus' }, { watermarkText: 'a\u0007b' }, { colour: 'red' }]) {

@@ -6,10 +6,11 @@ import { audit } from '../../lib/audit.js';
 import { HttpError } from '../../lib/errors.js';
 import { validate } from '../../lib/validate.js';
 import { loginSchema } from './auth.schemas.js';
+import { getSettings } from '../settings/settings.service.js';
 
 export function registerAuthRoutes(r: Router, { db, config }: Deps): void {
   /** The signed-in user, with the idle timeout so the client can clear the screen on time too. */
-  const me = (user: Express.User) => ({ ...user, idleMinutes: config.idleMinutes });
+  const me = async (user: Express.User) => ({ ...user, idleMinutes: (await getSettings(db, config)).idleMinutes });
 
   r.get('/api/auth/csrf', (req, res) => {
     res.json({ token: csrf.generateToken(req) });
@@ -22,7 +23,8 @@ export function registerAuthRoutes(r: Router, { db, config }: Deps): void {
       req.login(user, (loginErr) => {
         if (loginErr) return next(loginErr);
         audit(db, req, { action: 'auth.login' })
-          .then(() => res.json(me(user)))
+          .then(() => me(user))
+          .then((body) => res.json(body))
           .catch(next);
       });
     })(req, res, next);
@@ -36,7 +38,7 @@ export function registerAuthRoutes(r: Router, { db, config }: Deps): void {
     res.status(204).end();
   });
 
-  r.get('/api/auth/me', allow(...STAFF), (req, res) => {
-    res.json(me(req.user!));
+  r.get('/api/auth/me', allow(...STAFF), async (req, res) => {
+    res.json(await me(req.user!));
   });
 }

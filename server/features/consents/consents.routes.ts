@@ -17,6 +17,7 @@ import { consentFileName, withdrawalMail } from './consent-mail.js';
 import { acknowledgeFlagsSchema, withdrawSchema } from './consents.schemas.js';
 import { canSeeClinicalContent, consentViews, verifyConsent } from './consents.service.js';
 import { openItemsForVisit } from './open-items.js';
+import { getSettings } from '../settings/settings.service.js';
 
 const idParams = z.object({ id: uuidParam });
 
@@ -94,10 +95,11 @@ export function registerConsentRoutes(r: Router, deps: Deps): void {
       throw conflict('Only a photography or showcase consent is withdrawn here. Record a change of mind about treatment in the visit.', { kind: c.kind }, 'NOT_WITHDRAWABLE');
     }
     if (c.withdrawnAt) throw conflict(`This consent was already withdrawn on ${c.withdrawalDate}.`, undefined, 'ALREADY_WITHDRAWN');
-    const today = todayIn(config.clinicTimeZone);
+    const clinic = await getSettings(db, config);
+    const today = todayIn(clinic.timeZone);
     const date = body.date ?? today;
     if (date > today) throw badRequest('The withdrawal date cannot be in the future.', { field: 'date' });
-    if (date < todayIn(config.clinicTimeZone, new Date(c.signedAt))) throw badRequest('The withdrawal date is before the consent was signed.', { field: 'date' });
+    if (date < todayIn(clinic.timeZone, new Date(c.signedAt))) throw badRequest('The withdrawal date is before the consent was signed.', { field: 'date' });
     const patient = await db.getRepository(Patient).findOneByOrFail({ id: c.patientId });
     const template = await db.getRepository(ConsentTemplate).findOneByOrFail({ id: c.templateId });
     const now = nowIso();
@@ -126,7 +128,7 @@ export function registerConsentRoutes(r: Router, deps: Deps): void {
         await queueMail(tx, {
           to: patient.email,
           ...withdrawalMail({
-            clinicName: config.clinicName,
+            clinicName: clinic.clinicName,
             firstName: patient.firstName,
             title: template.title,
             kind: c.kind,

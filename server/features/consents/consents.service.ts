@@ -20,6 +20,7 @@ import { formDone, parseProgress, parseTemplateIds } from './handover.service.js
 import type { signFormSchema } from './handover.schemas.js';
 import { checkSignature, nameMatches } from './signature.js';
 import type { z } from 'zod';
+import { getSettings } from '../settings/settings.service.js';
 
 type SignInput = z.output<typeof signFormSchema>;
 
@@ -79,6 +80,7 @@ export interface SignResult {
  */
 export async function signForm(deps: Deps, req: Request, h: HandoverSession, templateId: string, input: SignInput): Promise<SignResult> {
   const { db, storage, config } = deps;
+  const clinic = await getSettings(db, config);
   if (!parseTemplateIds(h).includes(templateId)) throw new HttpError(404, 'NOT_FOUND', 'This form is not part of the hand-over.');
   if (formDone(parseProgress(h)[templateId])) throw conflict('This form has already been completed.', undefined, 'FORM_ALREADY_DONE');
   const template = await db.getRepository(ConsentTemplate).findOneByOrFail({ id: templateId });
@@ -139,7 +141,7 @@ export async function signForm(deps: Deps, req: Request, h: HandoverSession, tem
     pdfKey,
     pdfSha256: '',
     contentSha256: '',
-    timeZone: config.clinicTimeZone,
+    timeZone: clinic.timeZone,
     shownAt: progress[templateId]?.shownAt ?? null,
     signedAt,
     startedById: h.createdById,
@@ -153,7 +155,7 @@ export async function signForm(deps: Deps, req: Request, h: HandoverSession, tem
   record.contentSha256 = consentContentSha256(record);
   const pdf = await renderConsentPdf({
     recordId: id,
-    clinicName: config.clinicName,
+    clinicName: clinic.clinicName,
     template: { title: template.title, version: template.version, sha256: template.sha256, body: template.body, questions, channels: offered, kind: template.kind },
     patient,
     answers,
@@ -164,7 +166,7 @@ export async function signForm(deps: Deps, req: Request, h: HandoverSession, tem
     signaturePng: signature.normalised,
     signedAt,
     shownAt: record.shownAt,
-    timeZone: config.clinicTimeZone,
+    timeZone: clinic.timeZone,
     startedBy: startedBy ? `${startedBy.name} (${startedBy.role})` : 'clinic staff',
     signedIp: record.signedIp,
     signedUserAgent: record.signedUserAgent,
@@ -180,7 +182,7 @@ export async function signForm(deps: Deps, req: Request, h: HandoverSession, tem
       const mail = patient.email
         ? await queueMail(tx, {
             to: patient.email,
-            ...signedMail({ clinicName: config.clinicName, firstName: patient.firstName, title: template.title, kind: template.kind, version: template.version, signedAt, timeZone: config.clinicTimeZone, recordId: id, contentSha256: record.contentSha256 }),
+            ...signedMail({ clinicName: clinic.clinicName, firstName: patient.firstName, title: template.title, kind: template.kind, version: template.version, signedAt, timeZone: clinic.timeZone, recordId: id, contentSha256: record.contentSha256 }),
             attachments: [{ key: pdfKey, filename: consentFileName(template.kind, template.version, signedAt), contentType: 'application/pdf' }],
             relatedType: 'consent',
             relatedId: id,

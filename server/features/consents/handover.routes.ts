@@ -15,6 +15,7 @@ import { newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
 import { signForm } from './consents.service.js';
 import { claimHandoverSchema, createHandoverSchema, signFormSchema, templateParams } from './handover.schemas.js';
+import { getSettings } from '../settings/settings.service.js';
 import {
   boundHandover,
   closedReason,
@@ -186,7 +187,7 @@ export function registerHandoverRoutes(r: Router, deps: Deps): void {
     const patient = await db.getRepository(Patient).findOneByOrFail({ id: h.patientId });
     res.json({
       id: h.id,
-      clinicName: config.clinicName,
+      clinicName: (await getSettings(db, config)).clinicName,
       expiresAt: h.expiresAt,
       completed: Boolean(h.completedAt),
       patient: { firstName: patient.firstName, lastName: patient.lastName },

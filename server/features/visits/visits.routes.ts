@@ -11,6 +11,7 @@ import { badRequest, forbidden, notFound } from '../../lib/errors.js';
 import { dayBoundsUtc, newId, nowIso, todayIn } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
 import { clinicDayQuerySchema, createVisitSchema, updateVisitSchema } from './visits.schemas.js';
+import { getSettings } from '../settings/settings.service.js';
 
 const idParams = z.object({ id: uuidParam });
 
@@ -96,8 +97,9 @@ export function registerVisitRoutes(r: Router, { db, config }: Deps): void {
   const day = validate({ query: clinicDayQuerySchema });
   r.get('/api/clinic-day', allow(...STAFF), day, async (req, res) => {
     const { query } = parsed(req, day);
-    const date = query.date ?? todayIn(config.clinicTimeZone);
-    const { start, end } = dayBoundsUtc(date, config.clinicTimeZone);
+    const { timeZone } = await getSettings(db, config);
+    const date = query.date ?? todayIn(timeZone);
+    const { start, end } = dayBoundsUtc(date, timeZone);
     const rows = await visits
       .createQueryBuilder('v')
       .leftJoinAndSelect('v.patient', 'patient')
@@ -111,6 +113,6 @@ export function registerVisitRoutes(r: Router, { db, config }: Deps): void {
       group.visits.push(visitView(v, req));
       byPractitioner.set(v.practitionerId, group);
     }
-    res.json({ date, timeZone: config.clinicTimeZone, practitioners: [...byPractitioner.values()] });
+    res.json({ date, timeZone, practitioners: [...byPractitioner.values()] });
   });
 }
