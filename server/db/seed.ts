@@ -2,6 +2,8 @@ import type { DataSource } from 'typeorm';
 import { hashPassword } from '../auth/passwords.js';
 import { insertDemoTemplates } from '../features/consents/demo-templates.js';
 import { insertDemoProducts } from '../features/treatments/demo-products.js';
+import { insertDemoTreatments } from '../features/treatments/demo-treatments.js';
+import { loadConfig } from '../config.js';
 import { Patient } from '../entities/patient.js';
 import { User, type Role } from '../entities/user.js';
 import { Visit, type VisitKind, type VisitStatus } from '../entities/visit.js';
@@ -65,7 +67,7 @@ export async function seedDemo(db: DataSource): Promise<boolean> {
     for (const u of users) await tx.getRepository(User).insert(u);
     const practitioners = users.filter((u) => u.role === 'practitioner');
     await insertDemoTemplates(tx, users.find((u) => u.role === 'admin')!.id, now);
-    await insertDemoProducts(tx, now);
+    const products = await insertDemoProducts(tx, now);
 
     const patients = DEMO_PATIENTS.map(([firstName, lastName, dateOfBirth, email, phone], i) => ({
       id: newId(),
@@ -102,6 +104,7 @@ export async function seedDemo(db: DataSource): Promise<boolean> {
       visits.push({ id: newId(), patientId: patients[pi].id, practitionerId: practitioners[k % practitioners.length].id, startsAt: atHour(0, hour, minute), kind, status, notes: '', createdAt: now, updatedAt: now });
     });
     for (const v of visits) await tx.getRepository(Visit).insert(v);
+    await insertDemoTreatments(tx, { visits, products, config: loadConfig(), now: new Date() });
   });
   return true;
 }

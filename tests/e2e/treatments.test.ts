@@ -101,10 +101,10 @@ describe.skipIf(!browserAvailable)('treatment record in Chromium at tablet size'
     await page.goto(app.url);
     const reminders = page.getByRole('list', { name: 'Reminders' });
     await reminders.waitFor();
-    const row = reminders.locator('li', { hasText: `${visit.patient.firstName} ${visit.patient.lastName}` }).filter({ hasText: 'Review' });
-    await row.waitFor();
     const due = new Date(Date.now() + 14 * 86_400_000).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'Europe/London' });
-    expect(await row.innerText()).toContain(due);
+    const row = reminders.locator('li', { hasText: `${visit.patient.firstName} ${visit.patient.lastName}` }).filter({ hasText: `Review · ${due}` });
+    await row.waitFor();
+    expect(await row.innerText()).toContain('Scheduled');
     await row.scrollIntoViewIfNeeded();
     await screenshot(page, 'clinic-day-reminders-1024x768');
     await context.close();
