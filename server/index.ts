@@ -47,9 +47,9 @@ const server = app.listen(config.port, () => {
   if (config.demoPhotos) {
     // In the background, so the app answers at once; each portrait goes through the real photo pipeline.
     const started = Date.now();
-    seedDemoPhotos({ db, storage, logger, config })
+    seedDemoPhotos({ db, storage, logger, config }, { stopped: () => stopping })
       .then((n) => n && console.log(`Demo photos: ${n} invented portraits stored in ${Math.round((Date.now() - started) / 1000)} s`))
-      .catch((err: unknown) => logger.error({ err }, 'demo photos could not be seeded'));
+      .catch((err: unknown) => stopping || logger.error({ err }, 'demo photos could not be seeded'));
   }
 });
 

@@ -33,9 +33,11 @@ interface Job {
 /**
  * Gives the demo clinic's first patients photos for their past visits, through the same pipeline as an upload
  * (so the stored files, hashes, access log and the steps after storing are all real). Runs once: it does nothing
- * when any photo exists or the demo patients are missing. Returns the number of photos stored.
+ * when any photo exists or the demo patients are missing; `stopped` ends it early (server shutting down).
+ * Returns the number of photos stored.
  */
-export async function seedDemoPhotos(deps: PipelineDeps, now = new Date()): Promise<number> {
+export async function seedDemoPhotos(deps: PipelineDeps, opts: { now?: Date; stopped?: () => boolean } = {}): Promise<number> {
+  const now = opts.now ?? new Date();
   const { db } = deps;
   if ((await db.getRepository(Photo).count()) > 0) return 0;
   const patients = await db.getRepository(Patient).findBy({ code: In(PHOTO_PATIENTS.map((p) => p.code)) });
@@ -63,7 +65,7 @@ export async function seedDemoPhotos(deps: PipelineDeps, now = new Date()): Prom
   let next = 0;
   let stored = 0;
   const worker = async () => {
-    while (next < jobs.length) {
+    while (next < jobs.length && !opts.stopped?.()) {
       const job = jobs[next++];
       const bytes = await renderPortrait({ seed: job.face, view: job.view, lipVolume: job.lipVolume, shot: job.shot }, { capturedAt: job.capturedAt });
       const { created } = await ingestPhoto(deps, { visit: job.visit, viewKey: job.view, bytes, uploadedById: job.visit.practitionerId, req: null });
