@@ -48,6 +48,8 @@ function wrap<T>(what: string, fn: () => Promise<T>): Promise<T> {
 }
 
 export function createObjectStore(cfg: ObjectStoreConfig): ObjectStore {
+  // The SDK version is pinned for Node 20 on purpose; its notice about future releases needing Node 22 is known.
+  process.env.AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED ??= 'true';
   const client = new S3Client({
     endpoint: cfg.endpoint,
     region: cfg.region,
