@@ -147,6 +147,8 @@ describe.skipIf(!browserAvailable)('treatment record in Chromium at tablet size'
     await tapZone(page, 'lower-body');
     await tapZone(page, 'oral-commissure-left');
     expect(await page.getByTestId('filler-total').innerText()).toBe('0.2 mL');
+    // The demo patient was treated before: the screen shows the cumulative filler to date beside this visit's.
+    expect(await page.getByTestId('patient-to-date').innerText()).toMatch(/^Earlier visits: [\d.]+ mL filler in \d+ sessions?, last on .+ With this visit: [\d.]+ mL\.$/);
     await page.getByRole('group', { name: /Lip diagram/ }).scrollIntoViewIfNeeded();
     await screenshot(page, 'treatment-editor-768x1024');
     await context.close();

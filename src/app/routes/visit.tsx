@@ -23,7 +23,7 @@ export function VisitRoute() {
           <ScreeningReviewCard visitId={visitId} />
           <VisitPhotosCard visitId={visitId} shotListId={visit.shotListId} />
           <ConsultationForm key={`c-${visitId}`} visitId={visitId} patientId={visit.patientId} defaultOpen={visit.kind === 'consultation'} />
-          {visit.kind !== 'consultation' && <TreatmentEditor key={`t-${visitId}`} visitId={visitId} />}
+          {visit.kind !== 'consultation' && <TreatmentEditor key={`t-${visitId}`} visitId={visitId} patientId={visit.patientId} />}
         </>
       )}
     </div>

@@ -38,7 +38,7 @@ export function ClinicDayFollowUps({ date }: { date: string }) {
   const open = useOpenItems(date);
   const [cancelling, setCancelling] = useState<ReminderView | null>(null);
   return (
-    <div className="mt-6 grid gap-4 md:grid-cols-2">
+    <div className="mt-6 grid gap-4 lg:grid-cols-2">
       <Card>
         <CardHeader title="Reminders" action={<span className="text-sm text-ink-faint">{formatDate(date)} – {formatDate(to)}</span>} />
         {reminders.isPending ? (

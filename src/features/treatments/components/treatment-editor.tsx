@@ -9,7 +9,7 @@ import { Spinner } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { cn } from '../../../lib/cn';
 import { formatDate } from '../../../lib/format';
-import { useProducts, useSaveTreatment, useScreening, useTreatment, useTreatmentSettings } from '../api/treatments';
+import { usePatientTreatments, useProducts, useSaveTreatment, useScreening, useTreatment, useTreatmentSettings } from '../api/treatments';
 import { ADVERSE_EVENT_LABELS, ANAESTHETIC_LABELS, DEPTH_LABELS, TECHNIQUE_LABELS, type Product, type TreatmentInput, type TreatmentView } from '../types';
 import { DEFAULT_STEP, STEPS, ZONE_LABELS, ZONES_OF_KIND, type ProductKind, type ZoneKey } from '../zones';
 import { ComplicationCaution } from './complication-caution';
@@ -55,8 +55,9 @@ const todayIn = (timeZone: string) => new Intl.DateTimeFormat('en-CA', { timeZon
 const daysBetween = (from: string, to: string) => Math.round((Date.parse(`${to}T00:00:00Z`) - Date.parse(`${from}T00:00:00Z`)) / 86_400_000);
 
 /** The treatment record of a visit: product lines, the lip diagram, the dose table, totals, warnings and cautions. */
-export function TreatmentEditor({ visitId }: { visitId: string }) {
+export function TreatmentEditor({ visitId, patientId }: { visitId: string; patientId: string }) {
   const treatment = useTreatment(visitId);
+  const history = usePatientTreatments(patientId);
   const products = useProducts();
   const settings = useTreatmentSettings();
   const screening = useScreening(visitId);
@@ -139,6 +140,11 @@ export function TreatmentEditor({ visitId }: { visitId: string }) {
     }
   }
   const highVolume = fillerMilli > toMilli(cfg.highVolumeMl);
+  // The patient's cumulative filler before this visit (the server's per-patient totals, this visit left out).
+  const others = (history.data?.treatments ?? []).filter((t) => t.visitId !== visitId);
+  const earlier = others.length
+    ? { count: others.length, fillerMl: fromMilli(others.reduce((n, t) => n + toMilli(t.totals.fillerMl), 0)), last: others[others.length - 1].treatedAt }
+    : null;
 
   const lineIssues = lines.map((l) => {
     const out: { tone: 'warn' | 'danger' | 'info'; text: string }[] = [];
@@ -304,6 +310,12 @@ export function TreatmentEditor({ visitId }: { visitId: string }) {
                       <span className="font-mono font-semibold tabular-nums">
                         {fmt(fromMilli(toxinMilli))} U (right {fmt(fromMilli(toxinByZone['dao-right'] ?? 0))}, left {fmt(fromMilli(toxinByZone['dao-left'] ?? 0))})
                       </span>
+                    </p>
+                  )}
+                  {earlier && (
+                    <p className="text-sm text-ink-muted" data-testid="patient-to-date">
+                      Earlier visits: {fmt(earlier.fillerMl)} mL filler in {earlier.count} {earlier.count === 1 ? 'session' : 'sessions'}, last on {formatDate(earlier.last)}. With this visit:{' '}
+                      {fmt(earlier.fillerMl + fromMilli(fillerMilli))} mL.
                     </p>
                   )}
                   {highVolume && (
