@@ -149,11 +149,17 @@ export function registerPhotoRoutes(r: Router, deps: Deps): void {
     if (!stored) {
       throw badRequest(`This photo has no ${query.variant} in ${format}.`, { available: photo.variants.map((v) => `${v.variant}/${v.format}`) }, 'NO_SUCH_VARIANT');
     }
-    // Thumbnails fill every grid; logging each would bury the views of full-size photos in the access log.
-    if (query.variant !== 'thumb') {
-      await audit(db, req, { action: 'photo.view', patientId: photo.patientId, targetType: 'photo', targetId: photo.id, details: { variant: query.variant, format } });
-    }
     const object = await storage.stream(stored.key);
+    // Logged once the object is in hand, so a storage failure logs no view. Thumbnails fill every grid; logging
+    // each would bury the views of full-size photos in the access log.
+    if (query.variant !== 'thumb') {
+      await audit(db, req, { action: 'photo.view', patientId: photo.patientId, targetType: 'photo', targetId: photo.id, details: { variant: query.variant, format } }).catch(
+        (err: unknown) => {
+          object.body.destroy();
+          throw err;
+        },
+      );
+    }
     const ext = format === 'jpeg' ? 'jpg' : format;
     res.set({
       'Content-Type': format === 'jpeg' ? 'image/jpeg' : 'image/webp',
