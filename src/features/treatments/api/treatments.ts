@@ -85,7 +85,9 @@ export function useAcknowledgeFlags(visitId: string) {
     mutationFn: (body: { consentId: string; notes: { questionId: string; note: string }[] }) => acknowledgeFlags(visitId, body),
     onSuccess: (r) => {
       qc.setQueryData(treatmentKeys.screening(visitId), r);
-      return qc.invalidateQueries({ queryKey: treatmentKeys.followUps() });
+      // The consent records and the visit's open items show the same acknowledgement; they belong to other
+      // features, whose keys this one does not know, so everything on screen is refreshed.
+      return qc.invalidateQueries();
     },
   });
 }
