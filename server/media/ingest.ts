@@ -89,21 +89,25 @@ async function encodeAll(img: DecodedImage, name: PhotoVariantName, encodings: r
 /**
  * Decodes the upload once and makes every variant of `VARIANTS` from those pixels: each smaller size is resized
  * from the next larger one, and the master is encoded while the smaller sizes are made (libvips runs each on its
- * own worker thread).
+ * own worker thread). `onOutput` hears of each variant as soon as it is encoded, so it can be stored meanwhile.
  */
-export async function renderVariants(bytes: Buffer): Promise<RenderedPhoto> {
+export async function renderVariants(bytes: Buffer, onOutput?: (o: RenderedVariant) => void): Promise<RenderedPhoto> {
   const full = await decodeUpright(bytes);
   let display: DecodedImage = full;
   const sized = VARIANTS.filter((v) => v.longEdge !== null).sort((a, b) => b.longEdge! - a.longEdge!);
+  const emit = (outs: RenderedVariant[]) => {
+    if (onOutput) outs.forEach(onOutput);
+    return outs;
+  };
   const [master, smaller] = await Promise.all([
-    encodeAll(full, 'master', VARIANTS.find((v) => v.name === 'master')!.encodings),
+    encodeAll(full, 'master', VARIANTS.find((v) => v.name === 'master')!.encodings).then(emit),
     (async () => {
       const out: RenderedVariant[] = [];
       let source = full;
       for (const v of sized) {
         source = await resizeRaw(source, v.longEdge!);
         if (v.name === 'display') display = source;
-        out.push(...(await encodeAll(source, v.name, v.encodings)));
+        out.push(...emit(await encodeAll(source, v.name, v.encodings)));
       }
       return out;
     })(),
@@ -210,39 +214,45 @@ export async function ingestPhoto(deps: PipelineDeps, input: IngestInput): Promi
 
   await inspectHeader(input.bytes);
   const capture = await readCaptureInfo(input.bytes, deps.config.clinicTimeZone);
-  const rendered = await renderVariants(input.bytes);
 
   const id = newId();
   const now = nowIso();
-  const files = rendered.outputs.map((o) => ({
-    ...o,
-    key: photoKey({ patientId: input.visit.patientId, visitId: input.visit.id, photoId: id, variant: o.variant, ext: o.ext }),
-  }));
-  const master = files.find((f) => f.variant === 'master')!;
-  const photo = photos.create({
-    id,
-    patientId: input.visit.patientId,
-    visitId: input.visit.id,
-    viewKey: input.viewKey,
-    state: 'captured',
-    replacedById: null,
-    width: rendered.width,
-    height: rendered.height,
-    capturedAt: capture.capturedAt ?? now,
-    captureTimeSource: capture.capturedAt ? 'exif' : 'upload',
-    sourceOrientation: capture.orientation,
-    uploadedAt: now,
-    uploadedById: input.uploadedById,
-    sha256: sha256(master.data),
-    sourceSha256,
-    sourceBytes: input.bytes.length,
-    variants: files.map((f): PhotoVariant => ({ variant: f.variant, format: f.format, key: f.key, width: f.width, height: f.height, bytes: f.data.length })),
-  });
-
+  const keyOf = (o: RenderedVariant) => photoKey({ patientId: input.visit.patientId, visitId: input.visit.id, photoId: id, variant: o.variant, ext: o.ext });
+  // Each variant is written as soon as it is encoded, while the others are still being made.
+  const writes: Promise<void>[] = [];
+  const keys: string[] = [];
   let replaced: string | null = null;
+  let photo: Photo;
+  let rendered: RenderedPhoto;
   try {
-    const puts = await Promise.allSettled(files.map((f) => storage.put(f.key, f.data, f.contentType)));
-    const failed = puts.find((p): p is PromiseRejectedResult => p.status === 'rejected');
+    rendered = await renderVariants(input.bytes, (o) => {
+      const write = storage.put(keyOf(o), o.data, o.contentType);
+      // Handled here so a failure while other variants are still encoding is not an unhandled rejection.
+      write.catch(() => undefined);
+      keys.push(keyOf(o));
+      writes.push(write);
+    });
+    const master = rendered.outputs.find((o) => o.variant === 'master')!;
+    photo = photos.create({
+      id,
+      patientId: input.visit.patientId,
+      visitId: input.visit.id,
+      viewKey: input.viewKey,
+      state: 'captured',
+      replacedById: null,
+      width: rendered.width,
+      height: rendered.height,
+      capturedAt: capture.capturedAt ?? now,
+      captureTimeSource: capture.capturedAt ? 'exif' : 'upload',
+      sourceOrientation: capture.orientation,
+      uploadedAt: now,
+      uploadedById: input.uploadedById,
+      sha256: sha256(master.data),
+      sourceSha256,
+      sourceBytes: input.bytes.length,
+      variants: rendered.outputs.map((o): PhotoVariant => ({ variant: o.variant, format: o.format, key: keyOf(o), width: o.width, height: o.height, bytes: o.data.length })),
+    });
+    const failed = (await Promise.allSettled(writes)).find((p): p is PromiseRejectedResult => p.status === 'rejected');
     if (failed) throw failed.reason;
     await db.transaction(async (tx) => {
       const repo = tx.getRepository(Photo);
@@ -262,9 +272,13 @@ export async function ingestPhoto(deps: PipelineDeps, input: IngestInput): Promi
       });
     });
   } catch (err) {
-    await storage.remove(files.map((f) => f.key)).catch((cleanupErr: unknown) => {
-      deps.logger.error({ err: cleanupErr, photoId: id }, 'could not delete the objects of a failed photo upload; no row refers to them');
-    });
+    // Wait for writes still in flight, then delete everything this upload wrote.
+    await Promise.allSettled(writes);
+    if (keys.length) {
+      await storage.remove(keys).catch((cleanupErr: unknown) => {
+        deps.logger.error({ err: cleanupErr, photoId: id }, 'could not delete the objects of a failed photo upload; no row refers to them');
+      });
+    }
     // Two uploads of the same file raced: the other one won, answer with it.
     const winner = await photos.findOneBy(where).catch(() => null);
     if (winner) return duplicateOf(winner);
@@ -272,7 +286,7 @@ export async function ingestPhoto(deps: PipelineDeps, input: IngestInput): Promi
   }
   deps.logger.info({ photoId: id, visitId: photo.visitId, view: photo.viewKey, replaced }, 'photo stored');
 
-  const displayJpeg = files.find((f) => f.variant === 'display' && f.format === 'jpeg')!;
+  const displayJpeg = rendered.outputs.find((o) => o.variant === 'display' && o.format === 'jpeg')!;
   if (input.afterStore !== false) {
     const { data, width, height } = rendered.display;
     await runAfterPhotoStored({ deps, photo, display: { raw: data, width, height, channels: 3, jpeg: displayJpeg.data } });
