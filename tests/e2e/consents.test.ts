@@ -127,7 +127,7 @@ describe.skipIf(!browserAvailable)('consent hand-over in Chromium at 768×1024',
     await page.getByRole('heading', { name: 'Clinic day' }).waitFor();
     await page.goto(`${app.url}/admin/consent-forms`);
     await page.getByRole('heading', { name: 'Consent forms' }).waitFor();
-    expect(await page.getByText('published', { exact: true }).count()).toBe(4);
+    await expect.poll(() => page.getByText('published', { exact: true }).count()).toBe(4);
     await page.getByRole('button', { name: 'Read' }).first().click();
     await page.getByText(/SHA-256 [0-9a-f]{64}/).waitFor();
     await screenshot(page, 'consent-forms-768x1024');
