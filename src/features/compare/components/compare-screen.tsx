@@ -1,9 +1,9 @@
-import { lazy, Suspense, useCallback, useState } from 'react';
+import { lazy, Suspense, useCallback, useRef, useState } from 'react';
 import { Link, useNavigate, useSearchParams } from 'react-router-dom';
 import { ArrowLeft, FileDown, Presentation } from 'lucide-react';
 import { Button } from '../../../components/ui/button';
 import { Card } from '../../../components/ui/card';
-import { Select } from '../../../components/ui/field';
+import { Field, Select } from '../../../components/ui/field';
 import { Notice } from '../../../components/ui/notice';
 import { EmptyState, Spinner } from '../../../components/ui/page';
 import { cn } from '../../../lib/cn';
@@ -95,19 +95,19 @@ export function CompareScreen({ patient, backTo }: { patient: ComparePatient; ba
     src: search.get('src') as 'original' | null,
     lm: search.get('lm') as '1' | null,
   };
+  // Two changes in a row (a visit, then a view) must both land: each builds on the latest, not on the last render.
+  const latest = useRef(search);
+  latest.current = search;
   const set = useCallback(
-    (patch: Partial<CompareParams>) =>
-      setSearch(
-        (prev) => {
-          const next = new URLSearchParams(prev);
-          for (const [k, v] of Object.entries(patch)) {
-            if (v === null || v === undefined || v === '') next.delete(k);
-            else next.set(k, v);
-          }
-          return next;
-        },
-        { replace: true },
-      ),
+    (patch: Partial<CompareParams>) => {
+      const next = new URLSearchParams(latest.current);
+      for (const [k, v] of Object.entries(patch)) {
+        if (v === null || v === undefined || v === '') next.delete(k);
+        else next.set(k, v);
+      }
+      latest.current = next;
+      setSearch(next, { replace: true });
+    },
     [setSearch],
   );
   const timeline = useTimeline(patient.id);
@@ -184,30 +184,33 @@ export function CompareScreen({ patient, backTo }: { patient: ComparePatient; ba
       {startReview.error && <Notice tone="danger">{startReview.error.message}</Notice>}
 
       <div className="flex flex-wrap items-end gap-x-3 gap-y-2">
-        <label className="min-w-40 flex-1 space-y-1 text-sm font-medium text-ink-muted">
-          View
-          <Select value={view.key} onChange={(e) => set({ view: e.target.value })}>
-            {s.views.map((v) => (
-              <option key={v.key} value={v.key}>
-                {v.label}
-              </option>
-            ))}
-          </Select>
-        </label>
-        <label className="min-w-44 flex-1 space-y-1 text-sm font-medium text-ink-muted">
-          Baseline
-          <Select value={s.baseline.visit?.id ?? ''} onChange={(e) => set({ a: e.target.value })}>
-            {!s.baseline.visit && <option value="">Choose a visit</option>}
-            {timeline.data.visits.map((v) => visitOption(v, v.id))}
-          </Select>
-        </label>
-        <label className="min-w-44 flex-1 space-y-1 text-sm font-medium text-ink-muted">
-          Follow-up
-          <Select value={s.followUp.visit?.id ?? ''} onChange={(e) => set({ b: e.target.value })}>
-            {!s.followUp.visit && <option value="">Choose a visit</option>}
-            {timeline.data.visits.map((v) => visitOption(v, v.id))}
-          </Select>
-        </label>
+        <Field label="View" className="min-w-40 flex-1">
+          {(p) => (
+            <Select {...p} value={view.key} onChange={(e) => set({ view: e.target.value })}>
+              {s.views.map((v) => (
+                <option key={v.key} value={v.key}>
+                  {v.label}
+                </option>
+              ))}
+            </Select>
+          )}
+        </Field>
+        <Field label="Baseline" className="min-w-44 flex-1">
+          {(p) => (
+            <Select {...p} value={s.baseline.visit?.id ?? ''} onChange={(e) => set({ a: e.target.value })}>
+              {!s.baseline.visit && <option value="">Choose a visit</option>}
+              {timeline.data.visits.map((v) => visitOption(v, v.id))}
+            </Select>
+          )}
+        </Field>
+        <Field label="Follow-up" className="min-w-44 flex-1">
+          {(p) => (
+            <Select {...p} value={s.followUp.visit?.id ?? ''} onChange={(e) => set({ b: e.target.value })}>
+              {!s.followUp.visit && <option value="">Choose a visit</option>}
+              {timeline.data.visits.map((v) => visitOption(v, v.id))}
+            </Select>
+          )}
+        </Field>
       </div>
       <div className="flex flex-wrap items-center gap-2">
         <Segmented<CompareMode>

@@ -119,8 +119,26 @@ function SliderPair({ baseline, followUp, viewLabel, over }: { baseline: Side; f
   const b = useImage(followUp.source?.src ?? null);
   const ratio = baseline.source ? baseline.source.width / baseline.source.height : followUp.source ? followUp.source.width / followUp.source.height : null;
   const { ref, box } = useContainFit<HTMLDivElement>(ratio);
-  const slider = useReactCompareSlider({ keyboardIncrement: '2%', onlyHandleDraggable: true });
   const ready = (!baseline.source || a.isSuccess) && (!followUp.source || b.isSuccess);
+  return (
+    <div ref={ref} className="grid min-h-0 flex-1 place-items-center overflow-hidden rounded-lg bg-photo-surround">
+      {!ready || !box ? (
+        <span className="size-7 animate-spin rounded-full border-2 border-white/50 border-r-transparent" role="status" aria-label="Loading photos" />
+      ) : (
+        <div style={{ width: box.width, height: box.height }}>
+          <SliderBody baseline={baseline} followUp={followUp} viewLabel={viewLabel} over={over} />
+        </div>
+      )}
+    </div>
+  );
+}
+
+/**
+ * Mounted only once both photos are ready: the slider hook finds its handle on its first layout pass, which is when
+ * it binds the pointer listeners (a handle that appears later would never follow a drag).
+ */
+function SliderBody({ baseline, followUp, viewLabel, over }: { baseline: Side; followUp: Side; viewLabel: string; over: (s: Side) => ReactNode }) {
+  const slider = useReactCompareSlider({ keyboardIncrement: '2%', onlyHandleDraggable: true });
   const img = (s: Side) =>
     s.source ? (
       <div className="relative size-full">
@@ -131,25 +149,15 @@ function SliderPair({ baseline, followUp, viewLabel, over }: { baseline: Side; f
       <div className="grid size-full place-items-center text-sm text-white/85">No photo at this visit</div>
     );
   return (
-    <div ref={ref} className="grid min-h-0 flex-1 place-items-center overflow-hidden rounded-lg bg-photo-surround">
-      {!ready || !box ? (
-        <span className="size-7 animate-spin rounded-full border-2 border-white/50 border-r-transparent" role="status" aria-label="Loading photos" />
-      ) : (
-        <div style={{ width: box.width, height: box.height }}>
-          <Slider.Provider {...slider}>
-            <Slider.Root style={{ width: '100%', height: '100%' }} data-testid="compare-slider">
-              <Slider.Item item="itemOne">{img(baseline)}</Slider.Item>
-              <Slider.Item item="itemTwo">{img(followUp)}</Slider.Item>
-              <Slider.HandleRoot
-                aria-label={`Divider between baseline and follow-up. Use the arrow keys or drag the handle.`}
-              >
-                <Slider.Handle buttonStyle={{ width: '3rem', height: '3rem', backgroundColor: 'rgba(0,0,0,0.35)' }} />
-              </Slider.HandleRoot>
-            </Slider.Root>
-          </Slider.Provider>
-        </div>
-      )}
-    </div>
+    <Slider.Provider {...slider}>
+      <Slider.Root style={{ width: '100%', height: '100%' }} data-testid="compare-slider">
+        <Slider.Item item="itemOne">{img(baseline)}</Slider.Item>
+        <Slider.Item item="itemTwo">{img(followUp)}</Slider.Item>
+        <Slider.HandleRoot aria-label="Divider between baseline and follow-up. Use the arrow keys or drag the handle.">
+          <Slider.Handle buttonStyle={{ width: '3rem', height: '3rem', backgroundColor: 'rgba(0,0,0,0.35)' }} />
+        </Slider.HandleRoot>
+      </Slider.Root>
+    </Slider.Provider>
   );
 }
 
