@@ -166,6 +166,39 @@ describe.skipIf(!browserAvailable)('photo capture in Chromium at tablet size', (
     await context.close();
   });
 
+  it('says why an upload failed and lets it be retried', async () => {
+    const { context, page } = await newTabletPage(browser);
+    const u = demoUser('practitioner');
+    await signIn(page, app.url, u.email, u.password);
+    await page.getByRole('heading', { name: 'Clinic day' }).waitFor();
+    const { visit } = await visitWithHistory(page);
+    await page.goto(`${app.url}/visits/${visit.id}/photos`);
+    const slot = page.locator('article[data-view="oblique-left"]');
+    await slot.waitFor();
+
+    // The server refuses a file that is not a photo, and the slot says why.
+    await page.getByLabel('Photo file for Oblique left 45°').setInputFiles({ name: 'notes.jpg', mimeType: 'image/jpeg', buffer: Buffer.from('not a photo at all\n'.repeat(50)) });
+    await slot.getByRole('alert').filter({ hasText: 'not a photo Twinframe can read' }).waitFor();
+    expect(await slot.getAttribute('data-state')).toBe('failed');
+    // Sending the same file again would fail the same way, so it is not offered.
+    const refusedRow = page.locator('[data-upload-status="failed"]').filter({ hasText: 'notes.jpg' });
+    expect(await refusedRow.getByRole('button', { name: 'Try again' }).count()).toBe(0);
+
+    // With the network gone the upload fails; back online, "Try again" stores it.
+    const cdp = await context.newCDPSession(page);
+    await cdp.send('Network.enable');
+    await cdp.send('Network.emulateNetworkConditions', { offline: true, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+    await page.getByLabel('Photo file for Oblique left 45°').setInputFiles({ name: 'oblique.jpg', mimeType: 'image/jpeg', buffer: await cameraJpeg(7) });
+    const failedRow = page.locator('[data-upload-status="failed"]').filter({ hasText: 'oblique.jpg' });
+    await failedRow.getByText('connection to Twinframe was lost').waitFor();
+    await screenshot(page, 'photos-upload-failed-1024x768');
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+    await failedRow.getByRole('button', { name: 'Try again' }).click();
+    await page.locator('[data-upload-status="done"]').filter({ hasText: 'oblique.jpg' }).waitFor({ timeout: 30_000 });
+    await expect.poll(() => slot.getAttribute('data-state')).toBe('captured');
+    await context.close();
+  });
+
   it('lets the admin see and edit the shot lists', async () => {
     const { context, page } = await newTabletPage(browser);
     const u = demoUser('admin');

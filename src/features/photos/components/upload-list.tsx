@@ -55,9 +55,11 @@ export function UploadList({ items, viewLabel, onRetry, onDismiss, onClear }: {
                   {item.error}
                 </p>
                 <div className="flex gap-2">
-                  <Button size="sm" onClick={() => onRetry(item.id)}>
-                    <RotateCcw className="size-4" /> Try again
-                  </Button>
+                  {item.retryable && (
+                    <Button size="sm" onClick={() => onRetry(item.id)}>
+                      <RotateCcw className="size-4" /> Try again
+                    </Button>
+                  )}
                   <Button size="sm" variant="ghost" onClick={() => onDismiss(item.id)} aria-label={`Dismiss ${item.fileName}`}>
                     <X className="size-4" />
                   </Button>

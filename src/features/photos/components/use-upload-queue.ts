@@ -15,6 +15,8 @@ export interface UploadItem {
   /** 0–1 while uploading. */
   progress: number;
   error?: string;
+  /** False when the server refused the file itself: sending it again would fail the same way. */
+  retryable?: boolean;
   photo?: PhotoDto;
   duplicate?: boolean;
 }
@@ -48,7 +50,9 @@ export function useUploadQueue(visitId: string, patientId: string) {
         patch(item.id, { status: 'done', progress: 1, photo: result.photo, duplicate: result.duplicate });
         await qc.invalidateQueries({ queryKey: photoKeys.lists() });
       } catch (err) {
-        patch(item.id, { status: 'failed', error: err instanceof Error ? err.message : 'The upload failed.' });
+        const status = err instanceof ApiError ? err.status : 0;
+        const retryable = status === 0 || status >= 500 || status === 408 || status === 429;
+        patch(item.id, { status: 'failed', error: err instanceof Error ? err.message : 'The upload failed.', retryable });
       } finally {
         busy.current = false;
         // Wake the effect for the next waiting item.
