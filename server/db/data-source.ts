@@ -40,7 +40,7 @@ export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Landmar
  * Builds the SQLite data source. `database` is a file path, or ":memory:" in tests.
  */
 export function createDataSource(database: string): DataSource {
-  return new DataSource({
+  return serialiseTransactions(new DataSource({
     type: 'better-sqlite3',
     database,
     entities: ENTITIES,
@@ -53,7 +53,24 @@ export function createDataSource(database: string): DataSource {
       db.pragma('foreign_keys = ON');
       db.pragma('busy_timeout = 5000');
     },
-  });
+  }));
+}
+
+/**
+ * SQLite through TypeORM is one connection: two transactions begun in the same tick collide
+ * ("cannot start a transaction within a transaction"). Queue them, one after the other, per data source.
+ * Code inside a transaction must use its `tx` manager, never start another one on the data source.
+ */
+function serialiseTransactions(ds: DataSource): DataSource {
+  const manager = ds.manager;
+  const begin = manager.transaction.bind(manager) as (...args: unknown[]) => Promise<unknown>;
+  let tail: Promise<unknown> = Promise.resolve();
+  manager.transaction = ((...args: unknown[]) => {
+    const run = tail.then(() => begin(...args));
+    tail = run.catch(() => undefined);
+    return run;
+  }) as typeof manager.transaction;
+  return ds;
 }
 
 /** Opens the database and brings its schema up to date. */
