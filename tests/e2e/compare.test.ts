@@ -39,6 +39,20 @@ const photosPainted = (page: Page, n: number) =>
     { timeout: 20_000 },
   );
 
+/** Every image inside the viewport has loaded (lazy ones further away are left alone). */
+const visibleImagesLoaded = (page: Page) =>
+  page.waitForFunction(
+    () =>
+      [...document.querySelectorAll<HTMLImageElement>('img')]
+        .filter((i) => {
+          const r = i.getBoundingClientRect();
+          return r.bottom > 0 && r.top < innerHeight && r.right > 0 && r.left < innerWidth;
+        })
+        .every((i) => i.complete && i.naturalWidth > 0),
+    undefined,
+    { timeout: 20_000 },
+  );
+
 const sliderValue = async (page: Page) => Number(await page.getByRole('slider').getAttribute('aria-valuenow'));
 
 type TimelineVisit = { id: string; startsAt: string; photos: Record<string, { id: string; alignmentState: string }> };
@@ -96,6 +110,8 @@ describe.skipIf(!browserAvailable)('compare and review in Chromium', () => {
       await page.getByRole('link', { name: 'Timeline' }).click();
       await page.getByRole('heading', { name: 'Timeline' }).waitFor();
       await expect.poll(() => page.locator('tbody tr').count()).toBeGreaterThanOrEqual(frontal.length);
+      // Thumbnails on screen loaded (the rest load lazily as the list scrolls).
+      await visibleImagesLoaded(page);
       await screenshot(page, `compare-timeline-${size}`);
       expect(await axeProblems(page)).toEqual([]);
 
@@ -158,6 +174,7 @@ describe.skipIf(!browserAvailable)('compare and review in Chromium', () => {
       await page.getByRole('radio', { name: 'All visits' }).click();
       const strip = page.getByRole('list', { name: /every visit in time order/ });
       await expect.poll(() => strip.getByRole('listitem').count()).toBe(frontal.length);
+      await visibleImagesLoaded(page);
       await screenshot(page, `compare-strip-${size}`);
 
       // Switching views keeps the chosen visits.

@@ -62,7 +62,7 @@ export function CompareViewer({
   const { ref, maxHeight } = useCapHeight<HTMLDivElement>(ratio, mode === 'side-by-side' ? 2 : 1);
 
   if (mode === 'strip') {
-    return <Strip items={strip} viewLabel={viewLabel} baselineId={baseline.visit?.id} followUpId={followUp.visit?.id} onPick={onPick} overlay={overlay} className={className} tone={tone} />;
+    return <Strip items={strip} viewLabel={viewLabel} baselineId={baseline.visit?.id} followUpId={followUp.visit?.id} onPick={onPick} overlay={overlay} tone={tone} />;
   }
   if (mode === 'slider') {
     return (
@@ -181,18 +181,32 @@ function Strip({
   className?: string;
   tone: 'light' | 'dark';
 }) {
+  // Frames as tall as the screen leaves room for (header, controls, date and buttons), each in its photo's shape.
+  const [screen, setScreen] = useState(() => ({ w: window.innerWidth, h: window.innerHeight }));
+  useLayoutEffect(() => {
+    const fit = () => setScreen({ w: window.innerWidth, h: window.innerHeight });
+    window.addEventListener('resize', fit);
+    return () => window.removeEventListener('resize', fit);
+  }, []);
+  const photoH = Math.max(240, screen.h - (tone === 'dark' ? 300 : 400));
   if (!items.length) return <p className={cn('p-6', tone === 'dark' ? 'text-white/85' : 'text-ink-muted')}>No photos of this view yet.</p>;
   return (
-    <ol className={cn('flex min-h-0 snap-x gap-3 overflow-x-auto pb-2', className)} aria-label={`${viewLabel}: every visit in time order`}>
+    <ol className={cn('flex snap-x items-start gap-3 overflow-x-auto pb-2', className)} aria-label={`${viewLabel}: every visit in time order`}>
       {items.map((it) => {
         const isBase = it.visit.id === baselineId;
         const isFollow = it.visit.id === followUpId;
         return (
-          <li key={it.visit.id} className="flex h-full w-[min(17rem,42vw)] shrink-0 snap-start flex-col">
+          // Each frame takes its photo's own shape, no taller than the strip leaves room for (the date and buttons below).
+          <li
+            key={it.visit.id}
+            className="flex shrink-0 snap-start flex-col"
+            style={{ width: Math.max(160, Math.min(screen.w * 0.42, photoH * (it.source ? it.source.width / it.source.height : 0.8))) }}
+          >
             <PhotoFrame
               source={it.source}
               alt={`${viewLabel}, ${formatDate(it.visit.startsAt)}`}
-              className="min-h-0 flex-1 rounded-lg"
+              className="w-full rounded-lg"
+              style={{ aspectRatio: it.source ? `${it.source.width} / ${it.source.height}` : '4 / 5' }}
               overlay={overlay && it.source ? overlay(it.photo, it.source) : undefined}
             />
             <p className={cn('px-1 pt-2 text-sm', tone === 'dark' ? 'text-white/90' : 'text-ink-muted')}>

@@ -1,4 +1,4 @@
-import type { ReactNode } from 'react';
+import type { CSSProperties, ReactNode } from 'react';
 import { ImageOff } from 'lucide-react';
 import { cn } from '../../../lib/cn';
 import { useImage, type PhotoSource } from '../api/compare';
@@ -12,6 +12,7 @@ export function PhotoFrame({
   source,
   alt,
   className,
+  style,
   overlay,
   eager,
   emptyLabel = 'No photo of this view at this visit',
@@ -19,6 +20,7 @@ export function PhotoFrame({
   source: PhotoSource | null;
   alt: string;
   className?: string;
+  style?: CSSProperties;
   overlay?: ReactNode;
   /** Paint as soon as possible (the pair on screen); strip frames load lazily instead. */
   eager?: boolean;
@@ -28,7 +30,7 @@ export function PhotoFrame({
   const ready = !eager || img.isSuccess;
   const { ref, box } = useContainFit<HTMLDivElement>(source ? source.width / source.height : null);
   return (
-    <div ref={ref} className={cn('relative grid place-items-center overflow-hidden bg-photo-surround', className)}>
+    <div ref={ref} style={style} className={cn('relative grid place-items-center overflow-hidden bg-photo-surround', className)}>
       {!source ? (
         <div className="flex flex-col items-center gap-2 p-6 text-center text-sm text-white/85">
           <ImageOff className="size-6" aria-hidden />
