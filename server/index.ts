@@ -5,6 +5,7 @@ import { createApp } from './app.js';
 import { loadConfig } from './config.js';
 import { openDatabase } from './db/data-source.js';
 import { DEMO_USERS, seedDemo } from './db/seed.js';
+import { seedDemoConsents } from './db/seed-consents.js';
 import { seedDemoPhotos } from './db/seed-photos.js';
 import { startS3Fake, startSmtpFake, type RunningService } from './dev-services.js';
 import { createLogger } from './logger.js';
@@ -45,10 +46,14 @@ const server = app.listen(config.port, () => {
   }
   console.log(lines.join('\n'));
   if (config.demoPhotos) {
-    // In the background, so the app answers at once; each portrait goes through the real photo pipeline.
+    // In the background, so the app answers at once; forms are signed and portraits stored through the real code.
     const started = Date.now();
-    seedDemoPhotos({ db, storage, logger, config }, { stopped: () => stopping })
-      .then((n) => n && console.log(`Demo photos: ${n} invented portraits stored in ${Math.round((Date.now() - started) / 1000)} s`))
+    const seconds = () => Math.round((Date.now() - started) / 1000);
+    seedDemoConsents({ db, config, logger, storage, mailer }, { stopped: () => stopping })
+      .then((n) => n && console.log(`Demo consents: ${n} forms signed in ${seconds()} s`))
+      .catch((err: unknown) => stopping || logger.error({ err }, 'demo consents could not be seeded'))
+      .then(() => seedDemoPhotos({ db, storage, logger, config }, { stopped: () => stopping }))
+      .then((n) => n && console.log(`Demo photos: ${n} invented portraits stored in ${seconds()} s`))
       .catch((err: unknown) => stopping || logger.error({ err }, 'demo photos could not be seeded'));
   }
 });
