@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { addMonths, dayIn, lotStatus, zonedHourToUtc } from '../../server/features/treatments/dates.js';
+import { lotStatus } from '../../server/features/treatments/dates.js';
+import { addMonths, dayIn, zonedHourToUtc } from '../../server/lib/time.js';
 import { expiryDateSchema, lotNumberSchema } from '../../server/features/treatments/treatments.schemas.js';
 import { reminderDueDates } from '../../server/features/reminders/reminders.service.js';
 

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { allow, STAFF } from '../../auth/access.js';
 import type { Deps } from '../../deps.js';
 import { Visit } from '../../entities/visit.js';
-import { dayBoundsUtc, todayIn } from '../../lib/time.js';
+import { dayBoundsUtc, dayIn } from '../../lib/time.js';
 import { getSettings } from '../settings/settings.service.js';
 import { parsed, validate } from '../../lib/validate.js';
 import { openItemsForVisits, overdueReviews } from './open-items.js';
@@ -15,8 +15,9 @@ export function registerClinicDayRoutes(r: Router, { db, config }: Deps): void {
   const day = validate({ query });
   r.get('/api/clinic-day/open-items', allow(...STAFF), day, async (req, res) => {
     const { query: q } = parsed(req, day);
-    const date = q.date ?? todayIn((await getSettings(db, config)).timeZone);
-    const { start, end } = dayBoundsUtc(date, (await getSettings(db, config)).timeZone);
+    const { timeZone } = await getSettings(db, config);
+    const date = q.date ?? dayIn(timeZone);
+    const { start, end } = dayBoundsUtc(date, timeZone);
     const visits = await db
       .getRepository(Visit)
       .createQueryBuilder('v')

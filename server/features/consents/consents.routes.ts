@@ -9,7 +9,7 @@ import { Patient } from '../../entities/patient.js';
 import { Visit } from '../../entities/visit.js';
 import { audit } from '../../lib/audit.js';
 import { badRequest, conflict, forbidden, notFound } from '../../lib/errors.js';
-import { newId, nowIso, todayIn } from '../../lib/time.js';
+import { dayIn, newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
 import { queueMail } from '../../mail/outbox.js';
 import { emitConsentWithdrawn } from './consent-events.js';
@@ -96,10 +96,10 @@ export function registerConsentRoutes(r: Router, deps: Deps): void {
     }
     if (c.withdrawnAt) throw conflict(`This consent was already withdrawn on ${c.withdrawalDate}.`, undefined, 'ALREADY_WITHDRAWN');
     const clinic = await getSettings(db, config);
-    const today = todayIn(clinic.timeZone);
+    const today = dayIn(clinic.timeZone);
     const date = body.date ?? today;
     if (date > today) throw badRequest('The withdrawal date cannot be in the future.', { field: 'date' });
-    if (date < todayIn(clinic.timeZone, new Date(c.signedAt))) throw badRequest('The withdrawal date is before the consent was signed.', { field: 'date' });
+    if (date < dayIn(clinic.timeZone, new Date(c.signedAt))) throw badRequest('The withdrawal date is before the consent was signed.', { field: 'date' });
     const patient = await db.getRepository(Patient).findOneByOrFail({ id: c.patientId });
     const template = await db.getRepository(ConsentTemplate).findOneByOrFail({ id: c.templateId });
     const now = nowIso();

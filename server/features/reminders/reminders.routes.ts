@@ -8,10 +8,9 @@ import { Patient } from '../../entities/patient.js';
 import { Reminder, REMINDER_STATES } from '../../entities/reminder.js';
 import { audit } from '../../lib/audit.js';
 import { badRequest, conflict, notFound } from '../../lib/errors.js';
-import { nowIso, todayIn } from '../../lib/time.js';
+import { addDays, dayIn, daysBetween, nowIso } from '../../lib/time.js';
 import { getSettings } from '../settings/settings.service.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
-import { addDays, daysBetween } from '../treatments/dates.js';
 
 const idParams = z.object({ id: uuidParam });
 const day = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use the form YYYY-MM-DD.');
@@ -50,7 +49,7 @@ export function registerReminderRoutes(r: Router, { db, config }: Deps): void {
   const list = validate({ query: listQuery });
   r.get('/api/reminders', allow(...STAFF), list, async (req, res) => {
     const { query } = parsed(req, list);
-    const from = query.from ?? todayIn((await getSettings(db, config)).timeZone);
+    const from = query.from ?? dayIn((await getSettings(db, config)).timeZone);
     const to = query.to ?? addDays(from, 30);
     if (daysBetween(from, to) < 0 || daysBetween(from, to) > 366) throw badRequest('Choose a range of at most a year, "from" before "to".', [{ path: 'to', message: 'At most 366 days after "from".' }]);
     const qb = reminders.createQueryBuilder('r').where('r.dueOn >= :from AND r.dueOn <= :to', { from, to });

@@ -2,7 +2,7 @@ import type { EntityManager } from 'typeorm';
 import type { TreatmentSettings } from '../../config.js';
 import { Reminder, type ReminderKind } from '../../entities/reminder.js';
 import { newId, nowIso } from '../../lib/time.js';
-import { addDays, addMonths, zonedHourToUtc } from '../treatments/dates.js';
+import { addDays, addMonths, zonedHourToUtc } from '../../lib/time.js';
 
 export interface DueDate {
   kind: ReminderKind;

@@ -8,7 +8,7 @@ import { Treatment, TreatmentDose, TreatmentLine } from '../../entities/treatmen
 import type { Visit } from '../../entities/visit.js';
 import { newId } from '../../lib/time.js';
 import { reminderDueDates } from '../reminders/reminders.service.js';
-import { addMonths, dayIn } from './dates.js';
+import { addMonths, dayIn } from '../../lib/time.js';
 import type { ZoneKey } from './treatments.schemas.js';
 
 /** Invented first sessions and top-ups (mL per zone), all within the usual 0.5–1.5 mL per session (FACTS 17). */

@@ -8,7 +8,7 @@ import { User } from '../../entities/user.js';
 import { Visit } from '../../entities/visit.js';
 import { audit } from '../../lib/audit.js';
 import { badRequest, forbidden, notFound } from '../../lib/errors.js';
-import { dayBoundsUtc, newId, nowIso, todayIn } from '../../lib/time.js';
+import { dayBoundsUtc, dayIn, newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
 import { clinicDayQuerySchema, createVisitSchema, updateVisitSchema } from './visits.schemas.js';
 import { getSettings } from '../settings/settings.service.js';
@@ -98,7 +98,7 @@ export function registerVisitRoutes(r: Router, { db, config }: Deps): void {
   r.get('/api/clinic-day', allow(...STAFF), day, async (req, res) => {
     const { query } = parsed(req, day);
     const { timeZone } = await getSettings(db, config);
-    const date = query.date ?? todayIn(timeZone);
+    const date = query.date ?? dayIn(timeZone);
     const { start, end } = dayBoundsUtc(date, timeZone);
     const rows = await visits
       .createQueryBuilder('v')
