@@ -1,7 +1,9 @@
 import fs from 'node:fs';
+import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ShowcaseRequest } from '../../server/entities/showcase.js';
 import { alignmentWorkerFor } from '../../server/features/landmarks/alignment-worker.js';
+import { detectLandmarks } from '../../server/media/landmarks.js';
 import { boxIsLipsOnly, lipsOnlyCropBox } from '../../server/media/showcase-crop.js';
 import { renderPortrait } from '../../server/media/synthetic-portrait.js';
 import { createPatient, makeTestApp, signedIn, type Client, type TestApp } from '../helpers/app.js';
@@ -172,5 +174,24 @@ describe('lips-only crop', () => {
     const missing = face.slice();
     missing[57] = null;
     expect(lipsOnlyCropBox(missing, { width: 320, height: 400 })).toBeNull();
+  });
+});
+
+describe('lips-only crop on the demo portraits', () => {
+  // The invented demo faces go through the real detector; the crop must hold both lip corners (48, 54) and no
+  // eye point (36–47), per the iBUG 300-W indices of FACTS 5.
+  it('contains both lip corners and no eye landmark for each face', { timeout: 120_000 }, async () => {
+    for (const seed of [3, 8, 18]) {
+      const image = await renderPortrait({ seed, view: 'frontal-rest', lipVolume: 0.5 });
+      const found = await detectLandmarks(image);
+      expect(found, `face ${seed}`).not.toBeNull();
+      const points = found!.points.map(([x, y]) => ({ x, y }));
+      const { width, height } = await sharp(image).metadata();
+      const box = lipsOnlyCropBox(points, { width: width!, height: height! })!;
+      const inside = (p: { x: number; y: number }) => p.x >= box.left && p.x <= box.left + box.width && p.y >= box.top && p.y <= box.top + box.height;
+      expect(inside(points[48]) && inside(points[54]), `lip corners of face ${seed}`).toBe(true);
+      expect(points.slice(36, 48).some(inside), `eyes of face ${seed}`).toBe(false);
+      expect(box.top).toBeGreaterThan(points[30].y);
+    }
   });
 });
