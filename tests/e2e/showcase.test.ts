@@ -34,10 +34,12 @@ describe.skipIf(!browserAvailable)('showcase in Chromium: request, clear, export
     const found = await call<{ items: { id: string }[] }>(admin.page, 'GET', '/api/patients?q=LR-0001');
     const patientId = found.body.items[0].id;
 
-    // Demo photos are stored in the background after start: wait for this patient's frontal views.
+    // Demo photos are stored in the background after start: wait for this patient's frontal views…
     for (let i = 0; ; i++) {
-      const photos = await call<{ viewKey: string; state: string }[]>(admin.page, 'GET', `/api/patients/${patientId}/photos`);
-      if (photos.body.filter((p) => p.viewKey === 'frontal-rest' && p.state === 'captured').length >= 2) break;
+      // …and for their landmarks: a lips-only export is cropped from them.
+      const photos = await call<{ viewKey: string; state: string; alignmentState: string }[]>(admin.page, 'GET', `/api/patients/${patientId}/photos`);
+      const frontal = photos.body.filter((p) => p.viewKey === 'frontal-rest' && p.state === 'captured');
+      if (frontal.length >= 2 && frontal.every((p) => p.alignmentState === 'aligned')) break;
       if (i > 120) throw new Error('demo photos did not arrive');
       await admin.page.waitForTimeout(1000);
     }
