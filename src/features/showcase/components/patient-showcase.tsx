@@ -1,4 +1,5 @@
 import { useMemo, useState, type FormEvent } from 'react';
+import { useSearchParams } from 'react-router-dom';
 import { Check } from 'lucide-react';
 import { Button } from '../../../components/ui/button';
 import { Card, CardHeader } from '../../../components/ui/card';
@@ -43,13 +44,15 @@ export function PatientShowcase({ patientId, isAdmin }: { patientId: string; isA
   );
 }
 
+/** Nominate a result. `?view=…&photos=a,b` (as the compare screen links here) preselects the pair shown there. */
 function NominateForm({ patientId, allowed }: { patientId: string; allowed: ShowcaseChannel[] }) {
+  const [params] = useSearchParams();
   const photos = usePatientPhotos(patientId);
   const create = useCreateShowcaseRequest(patientId);
   const current = useMemo(() => (photos.data ?? []).filter((p) => p.state === 'captured').sort((a, b) => (a.capturedAt < b.capturedAt ? -1 : 1)), [photos.data]);
   const views = [...new Set(current.map((p) => p.viewKey))];
-  const [viewKey, setViewKey] = useState('');
-  const [picked, setPicked] = useState<string[]>([]);
+  const [viewKey, setViewKey] = useState(params.get('view') ?? '');
+  const [picked, setPicked] = useState<string[]>(() => (params.get('photos') ?? '').split(',').filter(Boolean));
   const [channels, setChannels] = useState<ShowcaseChannel[]>([]);
   const [note, setNote] = useState('');
   const view = viewKey || views[0] || '';
