@@ -75,17 +75,16 @@ describe.skipIf(!browserAvailable)('showcase in Chromium: request, clear, export
     expect(signed.status, JSON.stringify(signed.body)).toBe(201);
     await device.context.close();
 
-    // The practitioner nominates a before/after pair from the patient's Showcase tab.
+    // The practitioner nominates the before/after pair shown on the compare screen.
     const practitioner = await newTabletPage(browser);
     await signIn(practitioner.page, app.url, demoUser('practitioner').email, demoUser('practitioner').password);
     await practitioner.page.getByRole('heading', { name: 'Clinic day' }).waitFor();
-    await practitioner.page.goto(`${app.url}/patients/${patientId}/showcase`);
-    await practitioner.page.getByText('for Clinic website').or(practitioner.page.getByText('Clinic website')).first().waitFor();
     const p = practitioner.page;
-    await p.getByLabel('View').selectOption('frontal-rest');
-    const thumbs = p.getByRole('button', { name: /^Photo of / });
-    await thumbs.first().click();
-    await thumbs.last().click();
+    await p.goto(`${app.url}/patients/${patientId}/compare?view=frontal-rest`);
+    await p.getByRole('link', { name: 'Showcase…' }).click();
+    await p.getByRole('heading', { name: 'Nominate a result' }).waitFor();
+    expect(await p.getByLabel('View').inputValue()).toBe('frontal-rest');
+    await expect.poll(() => p.locator('button[aria-pressed="true"]').count()).toBe(2);
     await p.getByRole('checkbox', { name: 'Clinic website' }).check();
     await p.getByRole('button', { name: 'Request clearance' }).click();
     await p.getByText('Request sent to the clinic admin for clearance.').waitFor();

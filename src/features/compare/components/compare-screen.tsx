@@ -1,7 +1,7 @@
 import { lazy, Suspense, useCallback, useRef, useState } from 'react';
 import { Link, useNavigate, useSearchParams } from 'react-router-dom';
-import { ArrowLeft, FileDown, Presentation } from 'lucide-react';
-import { Button } from '../../../components/ui/button';
+import { ArrowLeft, FileDown, Megaphone, Presentation } from 'lucide-react';
+import { Button, buttonVariants } from '../../../components/ui/button';
 import { Card } from '../../../components/ui/card';
 import { Field, Select } from '../../../components/ui/field';
 import { Notice } from '../../../components/ui/notice';
@@ -176,6 +176,12 @@ export function CompareScreen({ patient, backTo }: { patient: ComparePatient; ba
           <Button onClick={() => setSheetOpen(true)}>
             <FileDown className="size-4" aria-hidden /> Comparison sheet
           </Button>
+          {pairIds && (
+            // Marketing use is decided on the Showcase tab, against the patient's showcase consent.
+            <Link className={buttonVariants()} to={`/patients/${patient.id}/showcase?view=${encodeURIComponent(view.key)}&photos=${pairIds.join(',')}`}>
+              <Megaphone className="size-4" aria-hidden /> Showcase…
+            </Link>
+          )}
           <Button variant="primary" onClick={enterReview} busy={startReview.isPending} disabled={!s.baseline.photo}>
             <Presentation className="size-4" aria-hidden /> Review mode
           </Button>
