@@ -110,6 +110,7 @@ export function CompareScreen({ patient, backTo }: { patient: ComparePatient; ba
     },
     [setSearch],
   );
+  const onView = useCallback((key: string) => set({ view: key }), [set]);
   const timeline = useTimeline(patient.id);
   const s = useCompareState(timeline.data, params, set);
   const pair = usePair(patient.id, s.baseline.photo?.id ?? null, s.followUp.photo?.id ?? null);
@@ -284,7 +285,7 @@ export function CompareScreen({ patient, backTo }: { patient: ComparePatient; ba
       </Card>
 
       <Card className="p-5">
-        <ViewsGrid views={s.views} baseline={s.baseline.visit} followUp={s.followUp.visit} current={view.key} onView={(key) => set({ view: key })} />
+        <ViewsGrid views={s.views} baseline={s.baseline.visit} followUp={s.followUp.visit} current={view.key} onView={onView} />
       </Card>
 
       <SheetDialog open={sheetOpen} onClose={() => setSheetOpen(false)} patient={patient} view={view} pair={pairIds} strip={s.strip} aligned={s.aligned} />

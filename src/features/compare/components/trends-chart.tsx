@@ -1,4 +1,4 @@
-import { useMemo } from 'react';
+import { memo, useMemo } from 'react';
 import { Bar, CartesianGrid, ComposedChart, Legend, Line, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
 import { formatDate } from '../../../lib/format';
 import type { MeasurementSeries, Timeline } from '../types';
@@ -32,7 +32,7 @@ interface Point {
  * of total vermilion area and mouth width since the first measured visit, and the filler volume of each treatment as
  * bars on the same time axis. Without recorded treatments there are no bars (never estimated).
  */
-export default function TrendsChart({ series, viewKey, timeline }: { series: MeasurementSeries; viewKey: string; timeline: Timeline }) {
+function TrendsChart({ series, viewKey, timeline }: { series: MeasurementSeries; viewKey: string; timeline: Timeline }) {
   const c = useMemo(palette, []);
   const view = series.views.find((v) => v.viewKey === viewKey);
   const treated = timeline.visits.filter((v) => v.treatment && v.treatment.fillerMl > 0);
@@ -110,3 +110,6 @@ export default function TrendsChart({ series, viewKey, timeline }: { series: Mea
     </div>
   );
 }
+
+/** Redrawn only when its data or view change, not on every pick of a visit (the chart is the heaviest part of the screen). */
+export default memo(TrendsChart);

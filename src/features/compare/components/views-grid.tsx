@@ -1,3 +1,4 @@
+import { memo } from 'react';
 import { ImageOff } from 'lucide-react';
 import { cn } from '../../../lib/cn';
 import { formatDate } from '../../../lib/format';
@@ -8,7 +9,7 @@ import type { Timeline, TimelineVisit } from '../types';
  * Every view for the two chosen visits, as small photos (as taken): a quick check that the whole shot list was
  * covered, and a way to switch views while keeping the two visits.
  */
-export function ViewsGrid({
+export const ViewsGrid = memo(function ViewsGrid({
   views,
   baseline,
   followUp,
@@ -62,4 +63,4 @@ export function ViewsGrid({
       </ul>
     </section>
   );
-}
+});
