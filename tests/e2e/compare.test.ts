@@ -6,21 +6,10 @@ import { promisify } from 'node:util';
 import { AxeBuilder } from '@axe-core/playwright';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { browserAvailable, demoUser, launchBrowser, newTabletPage, screenshot, signIn, startServer, TABLET_LANDSCAPE, TABLET_PORTRAIT, type RunningApp } from './harness.js';
+import { browserAvailable, demoUser, launchBrowser, newTabletPage, pageApi, screenshot, signIn, startServer, TABLET_LANDSCAPE, TABLET_PORTRAIT, type RunningApp } from './harness.js';
 
 const run = promisify(execFile);
 
-/** A JSON call from inside the page, with the CSRF token the app would send. */
-async function call<T>(page: Page, method: string, url: string, body?: unknown): Promise<{ status: number; body: T }> {
-  return page.evaluate(
-    async ({ method, url, body }) => {
-      const csrf = (await (await fetch('/api/auth/csrf')).json()).token as string;
-      const res = await fetch(url, { method, headers: { 'Content-Type': 'application/json', 'X-CSRF-Token': csrf }, body: body === undefined ? undefined : JSON.stringify(body) });
-      return { status: res.status, body: res.status === 204 ? null : await res.json() };
-    },
-    { method, url, body },
-  ) as Promise<{ status: number; body: T }>;
-}
 
 /** Serious and critical findings of axe-core on the page as it is now (WCAG rules and best practices). */
 async function axeProblems(page: Page): Promise<string[]> {
@@ -73,7 +62,7 @@ describe.skipIf(!browserAvailable)('compare and review in Chromium', () => {
     const u = demoUser('practitioner');
     await signIn(page, app.url, u.email, u.password);
     await page.getByRole('heading', { name: 'Clinic day' }).waitFor();
-    const all = await call<{ items: { id: string; code: string; firstName: string; lastName: string }[] }>(page, 'GET', '/api/patients?pageSize=100');
+    const all = await pageApi<{ items: { id: string; code: string; firstName: string; lastName: string }[] }>(page, 'GET', '/api/patients?pageSize=100');
     const p = all.body.items.find((x) => x.code === 'LR-0001')!;
     patientId = p.id;
     patientName = `${p.firstName} ${p.lastName}`;
@@ -81,7 +70,7 @@ describe.skipIf(!browserAvailable)('compare and review in Chromium', () => {
     others = all.body.items.filter((x) => x.id !== p.id).flatMap((x) => [`${x.firstName} ${x.lastName}`, x.lastName]);
     // Demo photos are stored and aligned in the background after start: wait until this patient's are settled.
     for (let i = 0; ; i++) {
-      const tl = await call<{ visits: TimelineVisit[] }>(page, 'GET', `/api/patients/${patientId}/timeline`);
+      const tl = await pageApi<{ visits: TimelineVisit[] }>(page, 'GET', `/api/patients/${patientId}/timeline`);
       frontal = tl.body.visits.filter((v) => v.photos['frontal-rest']);
       const settled = frontal.length >= 3 && tl.body.visits.every((v) => Object.values(v.photos).every((ph) => ph.alignmentState !== 'aligning'));
       if (settled && app.output().includes('Demo photos:')) break;
@@ -223,7 +212,7 @@ describe.skipIf(!browserAvailable)('compare and review in Chromium', () => {
       // Typing another address does not leave review mode, and the API refuses other patients.
       await page.goto(`${app.url}/patients`);
       await page.waitForURL(`${app.url}/review`);
-      expect((await call(page, 'GET', '/api/patients')).status).toBe(403);
+      expect((await pageApi(page, 'GET', '/api/patients')).status).toBe(403);
       await page.getByRole('heading', { name: /your results/ }).waitFor();
       await page.getByRole('button', { name: 'Staff: end review' }).click();
       await page.getByLabel('Your password').fill('not the password');

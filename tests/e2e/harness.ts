@@ -119,3 +119,15 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   await page.screenshot({ path: file, fullPage: false });
   return file;
 }
+
+/** A JSON call from inside the signed-in page, with the CSRF token the app would send. */
+export async function pageApi<T>(page: Page, method: string, url: string, body?: unknown): Promise<{ status: number; body: T }> {
+  return page.evaluate(
+    async ({ method, url, body }) => {
+      const csrf = (await (await fetch('/api/auth/csrf')).json()).token as string;
+      const res = await fetch(url, { method, headers: { 'Content-Type': 'application/json', 'X-CSRF-Token': csrf }, body: body === undefined ? undefined : JSON.stringify(body) });
+      return { status: res.status, body: res.status === 204 ? null : await res.json() };
+    },
+    { method, url, body },
+  ) as Promise<{ status: number; body: T }>;
+}

@@ -1,18 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
-import { browserAvailable, demoUser, launchBrowser, newTabletPage, screenshot, signIn, startServer, TABLET_PORTRAIT, type RunningApp } from './harness.js';
+import type { Browser } from 'playwright-core';
+import { browserAvailable, demoUser, launchBrowser, newTabletPage, pageApi, screenshot, signIn, startServer, TABLET_PORTRAIT, type RunningApp } from './harness.js';
 
-/** A JSON call from inside the page, with the CSRF token the app would send. */
-async function call<T>(page: Page, method: string, url: string, body?: unknown): Promise<{ status: number; body: T }> {
-  return page.evaluate(
-    async ({ method, url, body }) => {
-      const csrf = (await (await fetch('/api/auth/csrf')).json()).token as string;
-      const res = await fetch(url, { method, headers: { 'Content-Type': 'application/json', 'X-CSRF-Token': csrf }, body: body === undefined ? undefined : JSON.stringify(body) });
-      return { status: res.status, body: res.status === 204 ? null : await res.json() };
-    },
-    { method, url, body },
-  ) as Promise<{ status: number; body: T }>;
-}
 
 describe.skipIf(!browserAvailable)('showcase in Chromium: request, clear, export, withdraw', () => {
   let app: RunningApp;
@@ -31,13 +20,13 @@ describe.skipIf(!browserAvailable)('showcase in Chromium: request, clear, export
     const admin = await newTabletPage(browser);
     await signIn(admin.page, app.url, demoUser('admin').email, demoUser('admin').password);
     await admin.page.getByRole('heading', { name: 'Clinic day' }).waitFor();
-    const found = await call<{ items: { id: string }[] }>(admin.page, 'GET', '/api/patients?q=LR-0001');
+    const found = await pageApi<{ items: { id: string }[] }>(admin.page, 'GET', '/api/patients?q=LR-0001');
     const patientId = found.body.items[0].id;
 
     // Demo photos are stored in the background after start: wait for this patient's frontal views…
     for (let i = 0; ; i++) {
       // …and for their landmarks: a lips-only export is cropped from them.
-      const photos = await call<{ viewKey: string; state: string; alignmentState: string }[]>(admin.page, 'GET', `/api/patients/${patientId}/photos`);
+      const photos = await pageApi<{ viewKey: string; state: string; alignmentState: string }[]>(admin.page, 'GET', `/api/patients/${patientId}/photos`);
       const frontal = photos.body.filter((p) => p.viewKey === 'frontal-rest' && p.state === 'captured');
       if (frontal.length >= 2 && frontal.every((p) => p.alignmentState === 'aligned')) break;
       if (i > 120) throw new Error('demo photos did not arrive');
@@ -45,14 +34,14 @@ describe.skipIf(!browserAvailable)('showcase in Chromium: request, clear, export
     }
 
     // The patient signs the showcase consent on a second device (a code, as in the waiting room).
-    const forms = await call<{ id: string; kind: string; status: string }[]>(admin.page, 'GET', '/api/consent-templates');
+    const forms = await pageApi<{ id: string; kind: string; status: string }[]>(admin.page, 'GET', '/api/consent-templates');
     const showcaseForm = forms.body.find((f) => f.kind === 'showcase' && f.status === 'published')!;
-    const started = await call<{ code: string }>(admin.page, 'POST', '/api/handovers', { patientId, templateIds: [showcaseForm.id], mode: 'second-device' });
+    const started = await pageApi<{ code: string }>(admin.page, 'POST', '/api/handovers', { patientId, templateIds: [showcaseForm.id], mode: 'second-device' });
     expect(started.status).toBe(201);
     const device = await newTabletPage(browser, TABLET_PORTRAIT);
     await device.page.goto(`${app.url}/handover`);
-    expect((await call(device.page, 'POST', '/api/handover/claim', { code: started.body.code })).status).toBe(200);
-    const form = await call<{ forms: { templateId: string; questions: { id: string; type: string; flagWhen?: string[]; options?: string[] }[] }[] }>(device.page, 'GET', '/api/handover');
+    expect((await pageApi(device.page, 'POST', '/api/handover/claim', { code: started.body.code })).status).toBe(200);
+    const form = await pageApi<{ forms: { templateId: string; questions: { id: string; type: string; flagWhen?: string[]; options?: string[] }[] }[] }>(device.page, 'GET', '/api/handover');
     const answers = Object.fromEntries(form.body.forms[0].questions.map((q) => [q.id, q.type === 'yes-no' ? 'yes' : q.type === 'choice' ? q.options![0] : 'n/a']));
     const signature = await device.page.evaluate(() => {
       const c = Object.assign(document.createElement('canvas'), { width: 600, height: 200 });
@@ -65,7 +54,7 @@ describe.skipIf(!browserAvailable)('showcase in Chromium: request, clear, export
       g.stroke();
       return c.toDataURL('image/png');
     });
-    const signed = await call<{ consentId: string }>(device.page, 'POST', `/api/handover/forms/${showcaseForm.id}/sign`, {
+    const signed = await pageApi<{ consentId: string }>(device.page, 'POST', `/api/handover/forms/${showcaseForm.id}/sign`, {
       answers,
       channels: ['clinic-website'],
       crop: 'lips-only',
@@ -100,7 +89,7 @@ describe.skipIf(!browserAvailable)('showcase in Chromium: request, clear, export
     await screenshot(admin.page, 'showcase-queue-cleared-1024x768');
 
     // The patient withdraws the showcase consent (recorded by staff); everything stops at once.
-    expect((await call(admin.page, 'POST', `/api/consents/${signed.body.consentId}/withdraw`, { reason: 'Patient phoned the clinic.' })).status).toBe(200);
+    expect((await pageApi(admin.page, 'POST', `/api/consents/${signed.body.consentId}/withdraw`, { reason: 'Patient phoned the clinic.' })).status).toBe(200);
     await admin.page.getByRole('button', { name: 'Withdrawn' }).click();
     await admin.page.getByText('Showcase consent withdrawn by the patient.').first().waitFor();
     expect(await admin.page.getByRole('link', { name: 'composite' }).count()).toBe(0);
