@@ -174,7 +174,10 @@ export function registerPhotoRoutes(r: Router, deps: Deps): void {
       res.status(304).end();
       return;
     }
-    await pipeline(object.body, res);
+    await pipeline(object.body, res).catch((err: NodeJS.ErrnoException) => {
+      // The browser dropped the download (navigated away, a newer image replaced it): nothing to report.
+      if (err.code !== 'ERR_STREAM_PREMATURE_CLOSE') throw err;
+    });
   });
 
   registerShotListRoutes(r, deps);
