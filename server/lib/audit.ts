@@ -1,5 +1,5 @@
 import type { Request } from 'express';
-import type { DataSource, EntityManager } from 'typeorm';
+import { MoreThan, type DataSource, type EntityManager } from 'typeorm';
 import { AuditEvent } from '../entities/audit-event.js';
 import { newId, nowIso } from './time.js';
 
@@ -31,4 +31,18 @@ export async function audit(db: DataSource | EntityManager, req: Request | null,
     userAgent: req?.get('user-agent')?.slice(0, 300) ?? null,
     details: JSON.stringify(input.details ?? {}),
   });
+}
+
+/**
+ * Like `audit`, but a repeat of the same action on the same target by the same person within `withinMs` is not
+ * logged again (a screen that refreshes itself is one view, not dozens).
+ */
+export async function auditOnce(db: DataSource | EntityManager, req: Request, input: AuditInput & { targetId: string }, withinMs = 60_000): Promise<void> {
+  const actorId = req.user?.id;
+  if (actorId) {
+    const since = new Date(Date.now() - withinMs).toISOString();
+    const seen = await db.getRepository(AuditEvent).existsBy({ actorId, action: input.action, targetId: input.targetId, at: MoreThan(since) });
+    if (seen) return;
+  }
+  await audit(db, req, input);
 }

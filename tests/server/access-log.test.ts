@@ -62,6 +62,14 @@ describe('access log', () => {
     expect(byUser.body.total).toBe(1);
   });
 
+  it('logs a self-refreshing timeline once a minute per person, not on every refresh', async () => {
+    const p = await createPatient(t.db);
+    for (let i = 0; i < 3; i++) expect((await practitioner.get(`/api/patients/${p.id}/timeline`)).status).toBe(200);
+    await admin.get(`/api/patients/${p.id}/timeline`);
+    expect(await events({ action: 'timeline.view', targetId: p.id, actorRole: 'practitioner' })).toBe(1);
+    expect(await events({ action: 'timeline.view', targetId: p.id, actorRole: 'admin' })).toBe(1);
+  });
+
   it('refuses bad filters clearly', async () => {
     expect((await admin.get('/api/access-log').query({ from: '2026-05-02', to: '2026-05-01' })).status).toBe(400);
     expect((await admin.get('/api/access-log').query({ userId: 'nope' })).status).toBe(400);

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { allow, CLINICAL } from '../../auth/access.js';
 import type { Deps } from '../../deps.js';
 import { Patient } from '../../entities/patient.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditOnce } from '../../lib/audit.js';
 import { conflict, notFound } from '../../lib/errors.js';
 import { newId } from '../../lib/time.js';
 import { queueMail } from '../../mail/outbox.js';
@@ -27,7 +27,7 @@ export function registerCompareRoutes(r: Router, deps: Deps): void {
     const { params } = parsed(req, one);
     if (!(await db.getRepository(Patient).existsBy({ id: params.id }))) throw notFound('Patient');
     const timeline = await loadTimeline(db, params.id);
-    await audit(db, req, { action: 'timeline.view', patientId: params.id, targetType: 'patient', targetId: params.id });
+    await auditOnce(db, req, { action: 'timeline.view', patientId: params.id, targetType: 'patient', targetId: params.id });
     res.json(timeline);
   });
 
