@@ -52,6 +52,9 @@ export function viewTransform(view: ViewDef, anchors: readonly Point[]): Similar
  * decoded and transformed. sharp runs the affine before any crop it could apply, so the cut to the frame is a second
  * pass over raw pixels.
  */
+/** The same WebP quality as the display copy: keeps a pair of real photographs under ~500 KB (bench:compare). */
+export const ALIGNED_WEBP_QUALITY = 82;
+
 export async function renderAligned(
   image: Buffer,
   transform: Similarity,
@@ -86,8 +89,7 @@ export async function renderAligned(
       formats.map(async (format) => ({
         format,
         data: await (format === 'webp'
-          ? // The same WebP quality as the display copy: keeps a pair of real photographs under ~500 KB (bench:compare).
-            img.clone().webp({ quality: opts.quality ?? 82, effort: 2 })
+          ? img.clone().webp({ quality: opts.quality ?? ALIGNED_WEBP_QUALITY, effort: 2 })
           : img.clone().jpeg({ quality: opts.quality ?? 88 })
         ).toBuffer(),
       })),

@@ -33,6 +33,7 @@ import { createSmtpTransport } from '../../server/mail/transport.js';
 import { createObjectStore } from '../../server/storage/object-store.js';
 import { launchBrowser, newTabletPage, signIn, TABLET_LANDSCAPE } from '../e2e/harness.js';
 import { ApiSession, growPatient, waitForAlignment } from './compare-data.js';
+import { ALIGNED_WEBP_QUALITY } from '../../server/media/align.js';
 
 const VISITS = Number(process.env.BENCH_VISITS ?? 50);
 const RUNS = Number(process.env.BENCH_RUNS ?? 20);
@@ -219,12 +220,12 @@ async function main() {
 
       // The drawn portraits compress far better than photographs of skin and hair do. For the weight of real photos,
       // a real photograph (the astronaut portrait of Debian's python3-skimage data, public domain) is encoded at the
-      // aligned variant's settings (WebP quality 88, effort 2) at its own resolution, and its bytes per pixel are
+      // aligned variant's settings (ALIGNED_WEBP_QUALITY, effort 2) at its own resolution, and its bytes per pixel are
       // scaled to two frontal aligned frames (1200×1500 each).
       const ASTRONAUT = '/usr/lib/python3/dist-packages/skimage/data/astronaut.png';
       let realPairKb: number | null = null;
       if (fs.existsSync(ASTRONAUT)) {
-        const real = await sharp(ASTRONAUT).removeAlpha().webp({ quality: 88, effort: 2 }).toBuffer({ resolveWithObject: true });
+        const real = await sharp(ASTRONAUT).removeAlpha().webp({ quality: ALIGNED_WEBP_QUALITY, effort: 2 }).toBuffer({ resolveWithObject: true });
         realPairKb = ((real.data.length / (real.info.width * real.info.height)) * 1200 * 1500 * 2) / 1000;
       }
       const coldMs = median(cold), stepMs = median(step), pairKb = median(pairBytes) / 1000, jsKb = initialGzip / 1000;
