@@ -47,7 +47,7 @@ export function PatientLayout() {
               key={t.to}
               to={t.to}
               end
-              className={({ isActive }) => cn('-mb-px flex min-h-11 shrink-0 items-center border-b-2 border-transparent px-4 font-medium text-ink-muted hover:text-ink', isActive && 'border-accent text-ink')}
+              className={({ isActive }) => cn('-mb-px flex min-h-11 shrink-0 items-center border-b-2 border-transparent px-3 font-medium text-ink-muted hover:text-ink', isActive && 'border-accent text-ink')}
             >
               {t.label}
             </NavLink>

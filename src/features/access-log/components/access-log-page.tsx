@@ -142,7 +142,7 @@ export function AccessLogPage() {
               <ChevronLeft className="size-4" /> Newer
             </Button>
             <span className="text-sm text-ink-muted">
-              {data.total} entries · page {filters.page} of {pages}
+              {data.total} {data.total === 1 ? 'entry' : 'entries'} · page {filters.page} of {pages}
             </span>
             <Button variant="ghost" size="sm" disabled={filters.page >= pages} onClick={() => set('page', String(filters.page + 1))}>
               Older <ChevronRight className="size-4" />
