@@ -21,6 +21,19 @@ const frozen = (t: ConsentTemplate) =>
   );
 
 /** Consent form templates: admins write and publish them; all staff read them to start a hand-over. */
+/** The lifecycle fields of a new draft: unpublished, unhashed, not retired. */
+const draftFields = (userId: string, now: string) => ({
+  status: 'draft' as const,
+  sha256: null,
+  createdById: userId,
+  createdAt: now,
+  updatedAt: now,
+  publishedAt: null,
+  publishedById: null,
+  retiredAt: null,
+  retiredById: null,
+});
+
 export function registerTemplateRoutes(r: Router, { db }: Deps): void {
   const templates = db.getRepository(ConsentTemplate);
 
@@ -55,15 +68,7 @@ export function registerTemplateRoutes(r: Router, { db }: Deps): void {
       body: body.body,
       questions: JSON.stringify(body.questions),
       channels: JSON.stringify(body.channels),
-      status: 'draft',
-      sha256: null,
-      createdById: currentUser(req).id,
-      createdAt: now,
-      updatedAt: now,
-      publishedAt: null,
-      publishedById: null,
-      retiredAt: null,
-      retiredById: null,
+      ...draftFields(currentUser(req).id, now),
     });
     await db.transaction(async (tx) => {
       await tx.getRepository(ConsentTemplate).insert(row);
@@ -121,15 +126,7 @@ export function registerTemplateRoutes(r: Router, { db }: Deps): void {
         ...from,
         id: newId(),
         version: (latest?.version ?? from.version) + 1,
-        status: 'draft',
-        sha256: null,
-        createdById: currentUser(req).id,
-        createdAt: now,
-        updatedAt: now,
-        publishedAt: null,
-        publishedById: null,
-        retiredAt: null,
-        retiredById: null,
+        ...draftFields(currentUser(req).id, now),
       });
       await repo.insert(row);
       await audit(tx, req, { action: 'consent_template.new_version', targetType: 'consent_template', targetId: row.id, details: { from: from.id, version: row.version } });
