@@ -1,18 +1,3 @@
-import type {
-  AlignmentState,
-  LandmarkViewDto,
-  LipMeasurements,
-  LipRatioTargetDto,
-  LipRatioTargetInput,
-  MeasurementChange,
-  MeasurementsDto,
-  PairsDto,
-  PutLandmarksInput,
-  StoredLandmarks,
-  ViewSummaryDto,
-  XY,
-} from '../../../server/features/landmarks/landmarks.schemas';
-
 export type {
   AlignmentState,
   LandmarkViewDto,
@@ -26,7 +11,8 @@ export type {
   StoredLandmarks,
   ViewSummaryDto,
   XY,
-};
+} from '../../../server/features/landmarks/landmarks.schemas';
+import type { AlignmentState } from '../../../server/features/landmarks/landmarks.schemas';
 
 export const ALIGNMENT_LABEL: Record<AlignmentState, string> = {
   aligning: 'Aligning',
