@@ -1,4 +1,4 @@
-import { useEffect, useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import { Link, useNavigate, useSearchParams } from 'react-router-dom';
 import { ChevronLeft, ChevronRight, Plus, Search } from 'lucide-react';
 import { Button } from '../../../components/ui/button';
@@ -23,9 +23,16 @@ export function PatientsPage() {
   const create = useCreatePatient();
   const { data, isPending, error, isFetching } = usePatients({ q, page, pageSize: PAGE_SIZE });
 
+  // Opening a patient while the search is still settling must not bring the search back: the next
+  // screen loads on demand, so this one stays mounted (and its timer alive) for a moment.
+  const leaving = useRef(false);
+  const openPatient = () => {
+    leaving.current = true;
+  };
+
   useEffect(() => {
     const t = setTimeout(() => {
-      if (draft !== q) setParams(draft ? { q: draft } : {}, { replace: true });
+      if (!leaving.current && draft !== q) setParams(draft ? { q: draft } : {}, { replace: true });
     }, 250);
     return () => clearTimeout(t);
   }, [draft, q, setParams]);
@@ -73,9 +80,15 @@ export function PatientsPage() {
             </thead>
             <tbody>
               {data?.items.map((p) => (
-                <tr key={p.id} className="cursor-pointer border-b border-line last:border-0 hover:bg-paper-sunk/60" onClick={() => navigate(`/patients/${p.id}`)}>
+                <tr key={p.id} className="cursor-pointer border-b border-line last:border-0 hover:bg-paper-sunk/60" onClick={() => {
+                    openPatient();
+                    navigate(`/patients/${p.id}`);
+                  }}>
                   <td className="px-5 py-3">
-                    <Link to={`/patients/${p.id}`} className="font-medium text-ink hover:underline" onClick={(e) => e.stopPropagation()}>
+                    <Link to={`/patients/${p.id}`} className="font-medium text-ink hover:underline" onClick={(e) => {
+                        e.stopPropagation();
+                        openPatient();
+                      }}>
                       {p.lastName}, {p.firstName}
                     </Link>
                   </td>
