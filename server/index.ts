@@ -13,6 +13,7 @@ import { createReminderScheduler } from './features/reminders/scheduler.js';
 import { createMailer } from './mail/outbox.js';
 import { createSmtpTransport } from './mail/transport.js';
 import { createObjectStore } from './storage/object-store.js';
+import { resumeErasures } from './features/patient-data/erasure.js';
 
 const config = loadConfig();
 const logger = createLogger(config.logLevel);
@@ -29,6 +30,8 @@ await storage.ensureBucket();
 
 const db = await openDatabase(path.join(config.dataDir, 'twinframe.sqlite'));
 const seeded = config.demo ? await seedDemo(db) : false;
+// An erasure a crash left half-done is completed before anything else reads the patient's records.
+await resumeErasures({ db, storage, logger }).catch((err: unknown) => logger.error({ err }, 'an unfinished erasure could not be completed yet'));
 
 const mailer = createMailer({ db, storage, transport: createSmtpTransport(config.smtp), from: config.smtp.from, logger });
 mailer.start();

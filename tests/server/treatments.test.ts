@@ -6,6 +6,7 @@ import type { Product } from '../../server/entities/product.js';
 import type { User } from '../../server/entities/user.js';
 import { createPatient, makeTestApp, signedIn, type Client, type TestApp } from '../helpers/app.js';
 import { createProducts, createVisit, insertScreening, treatmentRowCounts } from '../helpers/treatments.js';
+import { newId } from '../../server/lib/time.js';
 
 let t: TestApp;
 let admin: Client;
@@ -293,6 +294,8 @@ describe('screening review', () => {
     const { patient, visitId } = await freshVisit();
     await insertScreening(t.db, patient.id, [], '2025-01-01T10:00:00.000Z');
     const latest = await insertScreening(t.db, patient.id, ['pregnant-breastfeeding']);
+    // A withdrawal is recorded after its evidence row (the database refuses it otherwise).
+    await t.db.query(`INSERT INTO "consent_evidence" ("id", "consentId", "at", "event", "actorId", "actorRole", "details") VALUES (?, ?, ?, 'consent.withdrawn', ?, 'practitioner', '{}')`, [newId(), latest.id, new Date().toISOString(), practitioner.id]);
     await t.db.query(`UPDATE "consent_record" SET "withdrawnAt" = ?, "withdrawnById" = ?, "withdrawalReason" = ?, "withdrawalDate" = ? WHERE "id" = ?`, [new Date().toISOString(), practitioner.id, 'entered in error', '2025-06-01', latest.id]);
     expect((await prac.get(`/api/visits/${visitId}/screening`)).body.screening).toBeNull();
     const res = await prac.put(`/api/visits/${visitId}/treatment`).send({ lines: [fillerLine(products.soft, [['upper-body', 0.2]])] });

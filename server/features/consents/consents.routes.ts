@@ -104,15 +104,6 @@ export function registerConsentRoutes(r: Router, deps: Deps): void {
     const template = await db.getRepository(ConsentTemplate).findOneByOrFail({ id: c.templateId });
     const now = nowIso();
     const updated = await db.transaction(async (tx) => {
-      // The one change a consent record allows: the withdrawal fields, set once (a trigger enforces it).
-      const result = await tx
-        .createQueryBuilder()
-        .update(ConsentRecord)
-        .set({ withdrawnAt: now, withdrawnById: staff.id, withdrawalReason: body.reason, withdrawalDate: date })
-        .where('id = :id AND "withdrawnAt" IS NULL', { id: c.id })
-        .execute();
-      if (result.affected !== 1) throw conflict('This consent was already withdrawn.', undefined, 'ALREADY_WITHDRAWN');
-      const fresh = await tx.getRepository(ConsentRecord).findOneByOrFail({ id: c.id });
       await tx.getRepository(ConsentEvidence).insert({
         id: newId(),
         consentId: c.id,
@@ -124,6 +115,15 @@ export function registerConsentRoutes(r: Router, deps: Deps): void {
         userAgent: req.get('user-agent')?.slice(0, 300) ?? null,
         details: JSON.stringify({ date, reason: body.reason }),
       });
+      // The one change a consent record allows: the withdrawal fields, set once, after its evidence row (triggers enforce both).
+      const result = await tx
+        .createQueryBuilder()
+        .update(ConsentRecord)
+        .set({ withdrawnAt: now, withdrawnById: staff.id, withdrawalReason: body.reason, withdrawalDate: date })
+        .where('id = :id AND "withdrawnAt" IS NULL', { id: c.id })
+        .execute();
+      if (result.affected !== 1) throw conflict('This consent was already withdrawn.', undefined, 'ALREADY_WITHDRAWN');
+      const fresh = await tx.getRepository(ConsentRecord).findOneByOrFail({ id: c.id });
       if (patient.email) {
         await queueMail(tx, {
           to: patient.email,

@@ -6,11 +6,12 @@ import type { Deps } from '../../deps.js';
 import { Patient } from '../../entities/patient.js';
 import { audit } from '../../lib/audit.js';
 import { badRequest, conflict, notFound } from '../../lib/errors.js';
-import { newId, nowIso } from '../../lib/time.js';
+import { nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
 import { patientPrefix } from '../../storage/keys.js';
 import { getSettings } from '../settings/settings.service.js';
-import { collectPatientRecords, primaryKey } from './patient-records.js';
+import { collectPatientRecords } from './patient-records.js';
+import { erasePatient } from './erasure.js';
 import { erasePatientSchema } from './patient-data.schemas.js';
 
 const idParams = z.object({ id: uuidParam });
@@ -24,7 +25,8 @@ export function erasableFrom(lastActivity: string, retentionYears: number): stri
   return d.toISOString();
 }
 
-export function registerPatientDataRoutes(r: Router, { db, config, storage }: Deps): void {
+export function registerPatientDataRoutes(r: Router, deps: Deps): void {
+  const { db, config, storage } = deps;
   const one = validate({ params: idParams });
 
   /** Everything held about one patient as a ZIP: records as JSON, photos and documents as stored. */
@@ -84,25 +86,7 @@ export function registerPatientDataRoutes(r: Router, { db, config, storage }: De
       );
     }
 
-    const keys = (await storage.list(patientPrefix(patient.id))).sort();
-    await storage.remove(keys);
-    const erasureId = newId();
-    const rowCount = await db.transaction(async (tx) => {
-      await tx.query('PRAGMA defer_foreign_keys = ON');
-      await tx.query(`INSERT INTO "patient_erasure" ("id", "patientId", "erasedById", "startedAt") VALUES (?, ?, ?, ?)`, [erasureId, patient.id, currentUser(req).id, nowIso()]);
-      const tables = await collectPatientRecords(db, tx, patient.id, { includeAccessLog: false });
-      let n = 0;
-      for (const t of [...tables].reverse()) {
-        const primary = primaryKey(db, t.table);
-        for (const row of t.rows) {
-          await tx.query(`DELETE FROM "${t.table}" WHERE "${primary}" = ?`, [row[primary]]);
-          n += 1;
-        }
-      }
-      await tx.query(`UPDATE "patient_erasure" SET "finishedAt" = ?, "objectCount" = ?, "rowCount" = ? WHERE "id" = ?`, [nowIso(), keys.length, n, erasureId]);
-      await audit(tx, req, { action: 'patient.erase', patientId: patient.id, targetType: 'patient', targetId: patient.id, details: { rows: n, files: keys.length, reason: body.reason } });
-      return n;
-    });
-    res.json({ erased: true, patientId: patient.id, rows: rowCount, files: keys.length });
+    const erased = await erasePatient(deps, { patientId: patient.id, erasedById: currentUser(req).id, reason: body.reason, req });
+    res.json({ erased: true, patientId: patient.id, ...erased });
   });
 }
