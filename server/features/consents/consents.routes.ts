@@ -11,7 +11,9 @@ import { audit } from '../../lib/audit.js';
 import { badRequest, conflict, forbidden, notFound } from '../../lib/errors.js';
 import { dayIn, newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
+import { alertAdmins } from '../../mail/admin-alert.js';
 import { queueMail } from '../../mail/outbox.js';
+import { sha256Hex } from './hash.js';
 import { emitConsentWithdrawn } from './consent-events.js';
 import { consentFileName, withdrawalMail } from './consent-mail.js';
 import { acknowledgeFlagsSchema, withdrawSchema } from './consents.schemas.js';
@@ -71,6 +73,26 @@ export function registerConsentRoutes(r: Router, deps: Deps): void {
     if (!canSeeClinicalContent(req, c.kind)) throw forbidden('A health questionnaire holds clinical answers; only clinicians can open it.');
     const template = await db.getRepository(ConsentTemplate).findOneByOrFail({ id: c.templateId });
     const pdf = await deps.storage.get(c.pdfKey);
+    const actual = sha256Hex(pdf);
+    if (actual !== c.pdfSha256) {
+      // Never hand out a document that is not the one signed: refuse, log it and tell the admins.
+      await db.transaction(async (tx) => {
+        await audit(tx, req, { action: 'consent.pdf_altered', patientId: c.patientId, targetType: 'consent', targetId: c.id, details: { expected: c.pdfSha256, actual } });
+        await alertAdmins(tx, {
+          subject: 'A stored consent PDF does not match its signed fingerprint',
+          text: `The stored PDF of consent record ${c.id} (${c.kind}, signed ${c.signedAt}) no longer matches the SHA-256 recorded when it was signed.\n\nRecorded: ${c.pdfSha256}\nStored now: ${actual}\n\nIt was not shown. Open the record in Twinframe and use Verify for details, then restore the document from your backups.`,
+          relatedType: 'consent-pdf-altered',
+          relatedId: c.id,
+          patientId: c.patientId,
+        });
+      });
+      deps.mailer.kick();
+      throw conflict(
+        "This consent's stored PDF does not match the fingerprint recorded when it was signed, so it was not shown. The clinic's admins have been alerted; use Verify on the record for details.",
+        { expected: c.pdfSha256, actual },
+        'DOCUMENT_ALTERED',
+      );
+    }
     await audit(db, req, { action: 'consent.pdf_view', patientId: c.patientId, targetType: 'consent', targetId: c.id });
     res.set('Content-Type', 'application/pdf');
     res.set('Content-Disposition', `inline; filename="${consentFileName(c.kind, template.version, c.signedAt)}"`);
