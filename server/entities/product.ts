@@ -10,12 +10,20 @@ export class Product {
   @Column('varchar', { length: 120 })
   name: string;
 
-  @Column('varchar', { length: 10 })
+  @Column('varchar', { length: 16 })
   kind: ProductKind;
 
-  /** mL for fillers, U for toxin (a CHECK constraint keeps the pair). */
+  /** mL for fillers, U for toxin and hyaluronidase (a CHECK constraint keeps the pair). */
   @Column('varchar', { length: 4 })
   unit: ProductUnit;
+
+  /** The product's own name for its units (units of one product are not another's); null for products in mL. */
+  @Column('varchar', { length: 40, nullable: true })
+  unitLabel: string | null;
+
+  /** GTIN-14 from the box's GS1 code, so a scan finds the product (check digit verified). */
+  @Column('varchar', { length: 14, nullable: true })
+  gtin: string | null;
 
   @Column('varchar', { length: 120 })
   manufacturer: string;

@@ -1,5 +1,5 @@
 import { Column, Entity, Index, JoinColumn, ManyToOne, OneToMany, PrimaryColumn, type Relation } from 'typeorm';
-import type { ProductKind, ProductUnit, ZoneKey } from '../features/treatments/treatments.schemas.js';
+import type { LineKind, ProductUnit, ZoneKey } from '../features/treatments/treatments.schemas.js';
 import { Patient } from './patient.js';
 import { User } from './user.js';
 import { Visit } from './visit.js';
@@ -97,7 +97,7 @@ export class TreatmentLine {
   manufacturer: string;
 
   @Column('varchar', { length: 10 })
-  kind: ProductKind;
+  kind: LineKind;
 
   @Column('varchar', { length: 4 })
   unit: ProductUnit;

@@ -17,7 +17,7 @@ export async function createProducts(admin: Client) {
   return {
     soft: await make({ name: 'Test soft HA filler', kind: 'filler', unit: 'mL', manufacturer: 'Testmoor Labs', packSize: 1 }),
     firm: await make({ name: 'Test firm HA filler', kind: 'filler', unit: 'mL', manufacturer: 'Testmoor Labs', packSize: 1 }),
-    toxin: await make({ name: 'Test neuromodulator', kind: 'toxin', unit: 'U', manufacturer: 'Testvale Pharma', packSize: 100 }),
+    toxin: await make({ name: 'Test neuromodulator', kind: 'toxin', unit: 'U', unitLabel: 'Testvale units', manufacturer: 'Testvale Pharma', packSize: 100 }),
   };
 }
 

@@ -9,7 +9,7 @@ import type { Visit } from '../../entities/visit.js';
 import { newId } from '../../lib/time.js';
 import { reminderDueDates } from '../reminders/reminders.service.js';
 import { addMonths, dayIn } from '../../lib/time.js';
-import type { ZoneKey } from './treatments.schemas.js';
+import type { LineKind, ZoneKey } from './treatments.schemas.js';
 
 /** Invented first sessions and top-ups (mL per zone), all within the usual 0.5–1.5 mL per session (FACTS 17). */
 const FIRST: [ZoneKey, number][][] = [
@@ -53,10 +53,10 @@ export async function insertDemoTreatments(tx: EntityManager, input: { visits: P
       updatedAt: treatedAt,
     });
     const product = fillers[i % fillers.length];
-    const lines: { product: Product; doses: [ZoneKey, number][]; techniques: string[]; depth: string; device: string; gauge: number }[] = [
-      { product, doses: nth === 0 ? FIRST[i % FIRST.length] : TOP_UP, techniques: ['linear-threading', 'serial-puncture'], depth: 'submucosal', device: 'needle', gauge: 30 },
+    const lines: { product: Product; kind: LineKind; doses: [ZoneKey, number][]; techniques: string[]; depth: string; device: string; gauge: number }[] = [
+      { product, kind: 'filler', doses: nth === 0 ? FIRST[i % FIRST.length] : TOP_UP, techniques: ['linear-threading', 'serial-puncture'], depth: 'submucosal', device: 'needle', gauge: 30 },
     ];
-    if (toxin && i % 4 === 1) lines.push({ product: toxin, doses: [['dao-right', 3], ['dao-left', 3]], techniques: ['bolus'], depth: 'intramuscular', device: 'needle', gauge: 32 });
+    if (toxin && i % 4 === 1) lines.push({ product: toxin, kind: 'toxin', doses: [['dao-right', 3], ['dao-left', 3]], techniques: ['bolus'], depth: 'intramuscular', device: 'needle', gauge: 32 });
     for (const [position, l] of lines.entries()) {
       const lineId = newId();
       await tx.getRepository(TreatmentLine).insert({
@@ -66,7 +66,7 @@ export async function insertDemoTreatments(tx: EntityManager, input: { visits: P
         productId: l.product.id,
         productName: l.product.name,
         manufacturer: l.product.manufacturer,
-        kind: l.product.kind,
+        kind: l.kind,
         unit: l.product.unit,
         lotNumber: lotFor(i * 2 + position),
         expiryDate: addMonths(treatedOn, 14),

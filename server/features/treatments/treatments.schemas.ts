@@ -1,12 +1,19 @@
 import { z } from 'zod';
+import { Gs1Error, normaliseGtin } from '../../lib/gs1.js';
 
-/** What a product is: hyaluronic-acid filler (measured in mL) or neuromodulator toxin (measured in units). */
-export const PRODUCT_KINDS = ['filler', 'toxin'] as const;
+/**
+ * What a product is: hyaluronic-acid filler (measured in mL), neuromodulator toxin (in units) or hyaluronidase, the
+ * enzyme that dissolves HA filler (in units; recorded in complication episodes and kept in the emergency kit).
+ */
+export const PRODUCT_KINDS = ['filler', 'toxin', 'hyaluronidase'] as const;
 export type ProductKind = (typeof PRODUCT_KINDS)[number];
+/** The kinds a treatment line records into zones of the diagram. */
+export type LineKind = Exclude<ProductKind, 'hyaluronidase'>;
 export const PRODUCT_UNITS = ['mL', 'U'] as const;
 export type ProductUnit = (typeof PRODUCT_UNITS)[number];
-/** A filler is always dosed in mL and a toxin in units; the pair is fixed so a line can never mix them up. */
-export const UNIT_OF_KIND: Record<ProductKind, ProductUnit> = { filler: 'mL', toxin: 'U' };
+/** A filler is always dosed in mL, toxin and hyaluronidase in units; the pair is fixed so a line can never mix them up. */
+export const UNIT_OF_KIND: Record<ProductKind, ProductUnit> = { filler: 'mL', toxin: 'U', hyaluronidase: 'U' };
+export const PRODUCT_KIND_LABELS: Record<ProductKind, string> = { filler: 'HA filler', toxin: 'Neuromodulator', hyaluronidase: 'Hyaluronidase' };
 
 /**
  * The zones of the lip diagram. Left and right are the patient's own sides (on the diagram, the patient's right
@@ -31,7 +38,7 @@ export const ZONES = [...FILLER_ZONES, ...TOXIN_ZONES] as const;
 export type FillerZone = (typeof FILLER_ZONES)[number];
 export type ToxinZone = (typeof TOXIN_ZONES)[number];
 export type ZoneKey = (typeof ZONES)[number];
-export const ZONES_OF_KIND: Record<ProductKind, readonly ZoneKey[]> = { filler: FILLER_ZONES, toxin: TOXIN_ZONES };
+export const ZONES_OF_KIND: Record<LineKind, readonly ZoneKey[]> = { filler: FILLER_ZONES, toxin: TOXIN_ZONES };
 
 export const ZONE_LABELS: Record<ZoneKey, string> = {
   'upper-vermilion-border': 'Upper vermilion border',
@@ -152,24 +159,47 @@ export const treatmentInputSchema = z
   })
   .strict();
 
+/** A GTIN-8/12/13/14 with a correct GS1 check digit, stored as 14 digits. */
+export const gtinSchema = z.string().transform((s, ctx) => {
+  try {
+    return normaliseGtin(s);
+  } catch (e) {
+    ctx.addIssue({ code: 'custom', message: e instanceof Gs1Error ? e.message : 'Not a GTIN.' });
+    return z.NEVER;
+  }
+});
+
+/**
+ * The name of a product's units as its labelling gives it, e.g. "U (Harlowvale type A)". Units of one neuromodulator
+ * are not interchangeable with another's (product labelling, FACTS 28), so every product in units has its own label.
+ */
+const unitLabelSchema = z.string().trim().min(1, 'Name the units as the product labelling does.').max(40, 'Use at most 40 characters.');
+
 export const productInputSchema = z
   .object({
     name: z.string().trim().min(1, 'Give the product a name.').max(120, 'Use at most 120 characters.'),
-    kind: z.enum(PRODUCT_KINDS, { message: 'Choose filler or toxin.' }),
+    kind: z.enum(PRODUCT_KINDS, { message: 'Choose filler, neuromodulator or hyaluronidase.' }),
     unit: z.enum(PRODUCT_UNITS, { message: 'Choose mL or U.' }),
+    unitLabel: unitLabelSchema.nullable().default(null),
     manufacturer: z.string().trim().min(1, 'Name the manufacturer.').max(120, 'Use at most 120 characters.'),
     /** What one pack holds, e.g. 1 (mL syringe) or 100 (U vial). */
-    packSize: z.number().positive('Pack size must be above zero.').max(1000).nullable().default(null),
+    packSize: z.number().positive('Pack size must be above zero.').max(100_000).nullable().default(null),
+    gtin: gtinSchema.nullable().default(null),
     active: z.boolean().default(true),
   })
   .strict()
-  .refine((p) => UNIT_OF_KIND[p.kind] === p.unit, { path: ['unit'], message: 'Fillers are measured in mL and toxin in units (U).' });
+  .superRefine((p, ctx) => {
+    if (UNIT_OF_KIND[p.kind] !== p.unit) ctx.addIssue({ code: 'custom', path: ['unit'], message: 'Fillers are measured in mL; neuromodulator and hyaluronidase in units (U).' });
+    if (p.unit === 'U' && !p.unitLabel) ctx.addIssue({ code: 'custom', path: ['unitLabel'], message: "Name this product's units as its labelling does: units of one product are not interchangeable with another's." });
+  });
 
 export const productUpdateSchema = z
   .object({
     name: z.string().trim().min(1, 'Give the product a name.').max(120, 'Use at most 120 characters.').optional(),
     manufacturer: z.string().trim().min(1, 'Name the manufacturer.').max(120, 'Use at most 120 characters.').optional(),
-    packSize: z.number().positive('Pack size must be above zero.').max(1000).nullable().optional(),
+    unitLabel: unitLabelSchema.nullable().optional(),
+    packSize: z.number().positive('Pack size must be above zero.').max(100_000).nullable().optional(),
+    gtin: gtinSchema.nullable().optional(),
     active: z.boolean().optional(),
   })
   .strict();

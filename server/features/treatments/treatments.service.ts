@@ -14,7 +14,7 @@ import { dayIn } from '../../lib/time.js';
 import { lotStatus, type LotStatus } from './dates.js';
 import { assertScreeningCleared } from './screening.js';
 import { lineTotal, toMilli, treatmentTotals, volumeWarnings, type Totals } from './totals.js';
-import { LIMITS, ZONES_OF_KIND, type ADVERSE_EVENTS, type TECHNIQUES, type treatmentInputSchema } from './treatments.schemas.js';
+import { LIMITS, ZONES_OF_KIND, type LineKind, type ADVERSE_EVENTS, type TECHNIQUES, type treatmentInputSchema } from './treatments.schemas.js';
 import type { z } from 'zod';
 
 type TreatmentInput = z.output<typeof treatmentInputSchema>;
@@ -39,10 +39,12 @@ export function checkLines(input: TreatmentInput, products: Map<string, Product>
     const p = products.get(line.productId);
     if (!p) throw lineError(i, 'productId', 'That product is not in the catalogue.', 'UNKNOWN_PRODUCT');
     if (!p.active && !allowInactive.has(p.id)) throw lineError(i, 'productId', `${p.name} is no longer in use in this clinic.`, 'UNKNOWN_PRODUCT');
+    if (p.kind === 'hyaluronidase') throw lineError(i, 'productId', `${p.name} is hyaluronidase: record its use in a complication episode of the treatment.`, 'NOT_A_TREATMENT_PRODUCT');
+    const kind = p.kind;
     if (line.unit !== p.unit) {
       throw lineError(i, 'unit', `${p.name} is a ${p.kind} measured in ${p.unit}, not ${line.unit}.`, 'UNIT_MISMATCH');
     }
-    const allowed = ZONES_OF_KIND[p.kind];
+    const allowed = ZONES_OF_KIND[kind];
     line.doses.forEach((d, j) => {
       if (!allowed.includes(d.zone)) {
         throw lineError(i, `doses.${j}.zone`, p.kind === 'filler' ? `Filler goes into the lip zones, not ${d.zone}.` : `Toxin is recorded for the depressor anguli oris (left or right), not ${d.zone}.`, 'ZONE_NOT_FOR_PRODUCT');
@@ -233,7 +235,8 @@ export async function saveTreatment(
         productId: p.id,
         productName: p.name,
         manufacturer: p.manufacturer,
-        kind: p.kind,
+        // checkLines refused hyaluronidase, so the product is a filler or a toxin.
+        kind: p.kind as LineKind,
         unit: p.unit,
         lotNumber: line.lotNumber ?? null,
         expiryDate: line.expiryDate ?? null,

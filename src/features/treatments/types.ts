@@ -16,8 +16,10 @@ export interface Product {
   name: string;
   kind: ProductKind;
   unit: ProductUnit;
+  unitLabel: string | null;
   manufacturer: string;
   packSize: number | null;
+  gtin: string | null;
   active: boolean;
 }
 

@@ -11,7 +11,7 @@ import { cn } from '../../../lib/cn';
 import { formatDate } from '../../../lib/format';
 import { usePatientTreatments, useProducts, useSaveTreatment, useScreening, useTreatment, useTreatmentSettings } from '../api/treatments';
 import { ADVERSE_EVENT_LABELS, ANAESTHETIC_LABELS, DEPTH_LABELS, TECHNIQUE_LABELS, type Product, type TreatmentInput, type TreatmentView } from '../types';
-import { DEFAULT_STEP, STEPS, ZONE_LABELS, ZONES_OF_KIND, type ProductKind, type ZoneKey } from '../zones';
+import { DEFAULT_STEP, STEPS, ZONE_LABELS, ZONES_OF_KIND, type LineKind, type ZoneKey } from '../zones';
 import { ComplicationCaution } from './complication-caution';
 import { LipDiagram } from './lip-diagram';
 
@@ -96,7 +96,7 @@ export function TreatmentEditor({ visitId, patientId }: { visitId: string; patie
     byId.get(l.productId) ??
     (() => {
       const stored = treatment.data?.lines.find((x) => x.productId === l.productId);
-      return stored ? { id: stored.productId, name: stored.productName, kind: stored.kind, unit: stored.unit, manufacturer: stored.manufacturer, packSize: null, active: false } : undefined;
+      return stored ? { id: stored.productId, name: stored.productName, kind: stored.kind, unit: stored.unit, manufacturer: stored.manufacturer, unitLabel: null, packSize: null, gtin: null, active: false } : undefined;
     })();
 
   if (treatment.isPending || products.isPending || settings.isPending || !lines) return <Spinner label="Loading the treatment record" />;
@@ -106,7 +106,7 @@ export function TreatmentEditor({ visitId, patientId }: { visitId: string; patie
 
   const current = lines[Math.min(active, lines.length - 1)];
   const currentProduct = productOf(current);
-  const kind: ProductKind = currentProduct?.kind ?? 'filler';
+  const kind: LineKind = currentProduct?.kind === 'toxin' ? 'toxin' : 'filler';
   const unit = kind === 'filler' ? 'mL' : 'U';
   const stepNow = step !== null && STEPS[kind].includes(step) ? step : DEFAULT_STEP[kind];
   const flagsOpen = Boolean(screening.data?.screening && !screening.data.screening.allAcknowledged);
@@ -239,7 +239,7 @@ export function TreatmentEditor({ visitId, patientId }: { visitId: string; patie
             {(p) => (
               <Select {...p} value={current.productId} onChange={(e) => update(active, { productId: e.target.value, milli: {} })}>
                 <option value="">Choose a product…</option>
-                {(products.data ?? []).map((x) => (
+                {(products.data ?? []).filter((x) => x.kind !== 'hyaluronidase').map((x) => (
                   <option key={x.id} value={x.id}>
                     {x.name} ({x.unit})
                   </option>
