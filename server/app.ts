@@ -73,7 +73,8 @@ export function createApp(deps: Deps, opts: { staticDir?: string } = {}): Expres
         directives: {
           defaultSrc: ["'self'"],
           baseUri: ["'self'"],
-          scriptSrc: ["'self'"],
+          // Compiling WebAssembly (the label-code reader) needs 'wasm-unsafe-eval'; scripts still come only from this origin.
+          scriptSrc: ["'self'", "'wasm-unsafe-eval'"],
           styleSrc: ["'self'", "'unsafe-inline'"],
           fontSrc: ["'self'"],
           imgSrc: ["'self'", 'data:', 'blob:'],

@@ -14,7 +14,10 @@ export function Dialog({ open, onClose, title, children, className }: { open: bo
   return (
     <dialog
       ref={ref}
-      onClose={onClose}
+      // React passes a nested dialog's close event up to this one's handler: only this dialog's own closing counts.
+      onClose={(e) => {
+        if (e.target === e.currentTarget) onClose();
+      }}
       aria-label={title}
       className={cn('m-auto w-[min(36rem,calc(100vw-2rem))] rounded-2xl border border-line bg-paper-raised p-0 text-ink shadow-2xl backdrop:bg-ink/40', className)}
     >
