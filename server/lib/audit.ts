@@ -46,3 +46,26 @@ export async function auditOnce(db: DataSource | EntityManager, req: Request, in
   }
   await audit(db, req, input);
 }
+
+/** Reads of one patient's data by one person within this window count as one screen opened. */
+export const SCREEN_WINDOW_MS = 60_000;
+
+/**
+ * Logs a read of one patient's data (HIPAA 164.312(b) audit controls) as one entry per screen: a read by a person
+ * who already has an entry naming this patient within `SCREEN_WINDOW_MS` is covered by it. So opening a patient
+ * (its record, visits, consents, photo list and thumbnails) is one row, not one per list or per thumbnail; reads
+ * of a single document or full-size photo keep their own entries through `audit`.
+ */
+export async function auditPatientRead(db: DataSource | EntityManager, req: Request, input: AuditInput & { patientId: string }): Promise<void> {
+  const actorId = req.user?.id;
+  if (actorId) {
+    const since = new Date(Date.now() - SCREEN_WINDOW_MS).toISOString();
+    if (await db.getRepository(AuditEvent).existsBy({ actorId, patientId: input.patientId, at: MoreThan(since) })) return;
+  }
+  await audit(db, req, input);
+}
+
+/** Logs a read of a clinic-wide list that names several patients (search, clinic day, queues): once a screen. */
+export function auditListRead(db: DataSource | EntityManager, req: Request, list: string, details?: Record<string, unknown>): Promise<void> {
+  return auditOnce(db, req, { action: `${list}.view`, targetType: 'list', targetId: list, details }, SCREEN_WINDOW_MS);
+}

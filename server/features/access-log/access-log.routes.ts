@@ -4,7 +4,7 @@ import { allow } from '../../auth/access.js';
 import type { Deps } from '../../deps.js';
 import { AuditEvent } from '../../entities/audit-event.js';
 import { dayBoundsUtc } from '../../lib/time.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditListRead } from '../../lib/audit.js';
 import { parsed, validate } from '../../lib/validate.js';
 import { getSettings } from '../settings/settings.service.js';
 import { accessLogQuerySchema } from './access-log.schemas.js';
@@ -51,6 +51,8 @@ export function registerAccessLogRoutes(r: Router, { db, config }: Deps): void {
     const qb = filtered(db, query, timeZone);
     const total = await qb.clone().getCount();
     const items = (await qb.offset((query.page - 1) * query.pageSize).limit(query.pageSize).getRawMany()) as Row[];
+    // Logged after the read, so the page shown does not list its own entry.
+    await auditListRead(db, req, 'access-log');
     res.json({ items: items.map((i) => ({ ...i, details: JSON.parse(i.details ?? '{}') })), total, page: query.page, pageSize: query.pageSize });
   });
 

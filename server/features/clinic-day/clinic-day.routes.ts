@@ -1,4 +1,5 @@
 import type { Router } from 'express';
+import { auditListRead } from '../../lib/audit.js';
 import { z } from 'zod';
 import { allow, STAFF } from '../../auth/access.js';
 import type { Deps } from '../../deps.js';
@@ -18,6 +19,8 @@ export function registerClinicDayRoutes(r: Router, { db, config }: Deps): void {
     const { timeZone } = await getSettings(db, config);
     const date = q.date ?? dayIn(timeZone);
     const { start, end } = dayBoundsUtc(date, timeZone);
+    // The same screen as the clinic day's visit list: one entry covers both.
+    await auditListRead(db, req, 'clinic-day', { date });
     const visits = await db
       .getRepository(Visit)
       .createQueryBuilder('v')

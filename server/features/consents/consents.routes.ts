@@ -7,7 +7,7 @@ import { ConsentRecord } from '../../entities/consent-record.js';
 import { ConsentTemplate, type ShowcaseChannel } from '../../entities/consent-template.js';
 import { Patient } from '../../entities/patient.js';
 import { Visit } from '../../entities/visit.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditPatientRead } from '../../lib/audit.js';
 import { badRequest, conflict, forbidden, notFound } from '../../lib/errors.js';
 import { dayIn, newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
@@ -35,6 +35,7 @@ export function registerConsentRoutes(r: Router, deps: Deps): void {
     const { params } = parsed(req, byPatient);
     if (!(await db.getRepository(Patient).existsBy({ id: params.id }))) throw notFound('Patient');
     const rows = await consents.find({ where: { patientId: params.id }, order: { signedAt: 'DESC' } });
+    await auditPatientRead(db, req, { action: 'consent.list', patientId: params.id, targetType: 'patient', targetId: params.id });
     res.json(await consentViews(db, req, rows));
   });
 
@@ -210,6 +211,7 @@ export function registerConsentRoutes(r: Router, deps: Deps): void {
     const visit = await db.getRepository(Visit).findOneBy({ id: params.id });
     if (!visit) throw notFound('Visit');
     const items = await openItemsForVisit(db, req, visit);
+    await auditPatientRead(db, req, { action: 'visit.open-items', patientId: visit.patientId, targetType: 'visit', targetId: visit.id });
     res.json({ visitId: visit.id, ready: items.length === 0, items });
   });
 }

@@ -9,7 +9,7 @@ import { ConsentTemplate } from '../../entities/consent-template.js';
 import { HandoverSession } from '../../entities/handover-session.js';
 import { Patient } from '../../entities/patient.js';
 import { Visit } from '../../entities/visit.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditPatientRead } from '../../lib/audit.js';
 import { badRequest, conflict, HttpError, notFound } from '../../lib/errors.js';
 import { newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
@@ -121,6 +121,7 @@ export function registerHandoverRoutes(r: Router, deps: Deps): void {
     const h = await sessions.findOneBy({ id: params.id });
     if (!h) throw notFound('Hand-over');
     const forms = await handoverForms(db, h);
+    await auditPatientRead(db, req, { action: 'handover.view', patientId: h.patientId, targetType: 'handover', targetId: h.id });
     res.json({
       id: h.id,
       mode: h.mode,

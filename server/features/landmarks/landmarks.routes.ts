@@ -4,7 +4,7 @@ import { allow, CLINICAL, currentUser } from '../../auth/access.js';
 import type { Deps } from '../../deps.js';
 import { Patient } from '../../entities/patient.js';
 import { Photo } from '../../entities/photo.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditPatientRead } from '../../lib/audit.js';
 import { badRequest, notFound } from '../../lib/errors.js';
 import { nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
@@ -103,6 +103,7 @@ export function registerLandmarkRoutes(r: Router, deps: Deps): void {
   r.get('/api/photos/:id/landmarks', allow(...CLINICAL), one, async (req, res) => {
     const { params } = parsed(req, one);
     const photo = await loadPhoto(params.id);
+    await auditPatientRead(db, req, { action: 'landmarks.view', patientId: photo.patientId, targetType: 'photo', targetId: photo.id });
     res.json(landmarkView(photo, await viewOfPhoto(db, photo)));
   });
 

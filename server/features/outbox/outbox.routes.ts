@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { allow } from '../../auth/access.js';
 import type { Deps } from '../../deps.js';
 import { MailLog, type MailAttachmentRef } from '../../entities/mail-log.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditListRead } from '../../lib/audit.js';
 import { conflict, notFound } from '../../lib/errors.js';
 import { nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
@@ -40,6 +40,7 @@ export function registerOutboxRoutes(r: Router, { db, mailer }: Deps): void {
       skip: (query.page - 1) * query.pageSize,
       take: query.pageSize,
     });
+    await auditListRead(db, req, 'outbox', { state: query.state ?? null, page: query.page });
     res.json({ items: rows.map(summary), total, page: query.page, pageSize: query.pageSize });
   });
 

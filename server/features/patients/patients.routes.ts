@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { allow, STAFF } from '../../auth/access.js';
 import type { Deps } from '../../deps.js';
 import { Patient } from '../../entities/patient.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditListRead } from '../../lib/audit.js';
 import { notFound } from '../../lib/errors.js';
 import { newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
@@ -18,7 +18,9 @@ export function registerPatientRoutes(r: Router, { db, config }: Deps): void {
   const list = validate({ query: patientListQuerySchema });
   r.get('/api/patients', allow(...STAFF), list, async (req, res) => {
     const { query } = parsed(req, list);
-    res.json(await searchPatients(db, { q: query.q, page: query.page, pageSize: query.pageSize, archived: query.archived === '1' }));
+    const found = await searchPatients(db, { q: query.q, page: query.page, pageSize: query.pageSize, archived: query.archived === '1' });
+    await auditListRead(db, req, 'patient-search', { q: query.q ?? null, archived: query.archived === '1' });
+    res.json(found);
   });
 
   const create = validate({ body: patientInputSchema });

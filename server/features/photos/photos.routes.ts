@@ -7,7 +7,7 @@ import type { Deps } from '../../deps.js';
 import { Patient } from '../../entities/patient.js';
 import { Photo } from '../../entities/photo.js';
 import { Visit } from '../../entities/visit.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditPatientRead } from '../../lib/audit.js';
 import { badRequest, conflict, HttpError, notFound } from '../../lib/errors.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
 import { ingestPhoto } from '../../media/ingest.js';
@@ -110,7 +110,9 @@ export function registerPhotoRoutes(r: Router, deps: Deps): void {
   const visitList = validate({ params: visitParams, query: visitPhotosQuerySchema });
   r.get('/api/visits/:visitId/photos', allow(...CLINICAL), visitList, async (req, res) => {
     const { params, query } = parsed(req, visitList);
-    if (!(await visits.existsBy({ id: params.visitId }))) throw notFound('Visit');
+    const visit = await visits.findOneBy({ id: params.visitId });
+    if (!visit) throw notFound('Visit');
+    await auditPatientRead(db, req, { action: 'photo.list', patientId: visit.patientId, targetType: 'visit', targetId: visit.id });
     const rows = await photos.find({
       where: { visitId: params.visitId, ...(query.all === '1' ? {} : { state: 'captured' as const }) },
       relations: { uploadedBy: true },
@@ -123,6 +125,7 @@ export function registerPhotoRoutes(r: Router, deps: Deps): void {
   r.get('/api/patients/:id/photos', allow(...CLINICAL), patientList, async (req, res) => {
     const { params, query } = parsed(req, patientList);
     if (!(await db.getRepository(Patient).existsBy({ id: params.id }))) throw notFound('Patient');
+    await auditPatientRead(db, req, { action: 'photo.list', patientId: params.id, targetType: 'patient', targetId: params.id });
     const rows = await photos.find({
       where: { patientId: params.id, ...(query.all === '1' ? {} : { state: 'captured' as const }) },
       relations: { uploadedBy: true, visit: true },
@@ -136,6 +139,7 @@ export function registerPhotoRoutes(r: Router, deps: Deps): void {
     const { params } = parsed(req, one);
     const photo = await photos.findOne({ where: { id: params.id }, relations: { uploadedBy: true, visit: true } });
     if (!photo) throw notFound('Photo');
+    await auditPatientRead(db, req, { action: 'photo.metadata.view', patientId: photo.patientId, targetType: 'photo', targetId: photo.id });
     res.json(photoView(photo, { visitStartsAt: photo.visit?.startsAt }));
   });
 
@@ -150,16 +154,13 @@ export function registerPhotoRoutes(r: Router, deps: Deps): void {
       throw badRequest(`This photo has no ${query.variant} in ${format}.`, { available: photo.variants.map((v) => `${v.variant}/${v.format}`) }, 'NO_SUCH_VARIANT');
     }
     const object = await storage.stream(stored.key);
-    // Logged once the object is in hand, so a storage failure logs no view. Thumbnails fill every grid; logging
-    // each would bury the views of full-size photos in the access log.
-    if (query.variant !== 'thumb') {
-      await audit(db, req, { action: 'photo.view', patientId: photo.patientId, targetType: 'photo', targetId: photo.id, details: { variant: query.variant, format } }).catch(
-        (err: unknown) => {
-          object.body.destroy();
-          throw err;
-        },
-      );
-    }
+    // Logged once the object is in hand, so a storage failure logs no view. Thumbnails fill every grid: they are
+    // covered by the screen's entry (auditPatientRead), so they do not bury the views of full-size photos.
+    const read = { action: query.variant === 'thumb' ? 'photo.thumbnail.view' : 'photo.view', patientId: photo.patientId, targetType: 'photo', targetId: photo.id, details: { variant: query.variant, format } };
+    await (query.variant === 'thumb' ? auditPatientRead(db, req, read) : audit(db, req, read)).catch((err: unknown) => {
+      object.body.destroy();
+      throw err;
+    });
     const ext = format === 'jpeg' ? 'jpg' : format;
     res.set({
       'Content-Type': format === 'jpeg' ? 'image/jpeg' : 'image/webp',

@@ -6,7 +6,7 @@ import type { Deps } from '../../deps.js';
 import { MailLog } from '../../entities/mail-log.js';
 import { Patient } from '../../entities/patient.js';
 import { Reminder, REMINDER_STATES } from '../../entities/reminder.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditListRead, auditPatientRead } from '../../lib/audit.js';
 import { badRequest, conflict, notFound } from '../../lib/errors.js';
 import { addDays, dayIn, daysBetween, nowIso } from '../../lib/time.js';
 import { getSettings } from '../settings/settings.service.js';
@@ -55,6 +55,7 @@ export function registerReminderRoutes(r: Router, { db, config }: Deps): void {
     const qb = reminders.createQueryBuilder('r').where('r.dueOn >= :from AND r.dueOn <= :to', { from, to });
     if (query.state) qb.andWhere('r.state = :state', { state: query.state });
     const rows = await qb.orderBy('r.dueAt', 'ASC').getMany();
+    await auditListRead(db, req, 'reminders', { from, to });
     res.json({ from, to, reminders: await reminderViews(db, rows) });
   });
 
@@ -63,6 +64,7 @@ export function registerReminderRoutes(r: Router, { db, config }: Deps): void {
     const { params } = parsed(req, one);
     if (!(await db.getRepository(Patient).existsBy({ id: params.id }))) throw notFound('Patient');
     const rows = await reminders.find({ where: { patientId: params.id }, order: { dueAt: 'ASC' } });
+    await auditPatientRead(db, req, { action: 'reminder.list', patientId: params.id, targetType: 'patient', targetId: params.id });
     res.json(await reminderViews(db, rows));
   });
 

@@ -9,7 +9,7 @@ import { Patient } from '../../entities/patient.js';
 import { Photo } from '../../entities/photo.js';
 import { ShowcaseExport, ShowcaseRequest, type ExportedFile } from '../../entities/showcase.js';
 import { User } from '../../entities/user.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditListRead, auditPatientRead } from '../../lib/audit.js';
 import { HttpError, notFound } from '../../lib/errors.js';
 import { newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
@@ -60,6 +60,7 @@ export function registerShowcaseRoutes(r: Router, { db, config, storage, mailer 
     const { params } = parsed(req, one);
     if (!(await db.getRepository(Patient).existsBy({ id: params.id }))) throw notFound('Patient');
     const status = await currentShowcaseConsent(db, params.id);
+    await auditPatientRead(db, req, { action: 'showcase.status.view', patientId: params.id, targetType: 'patient', targetId: params.id });
     const rows = await requests.find({ where: { patientId: params.id }, order: { requestedAt: 'DESC' } });
     res.json({
       consent: status.consent ? { id: status.consent.id, templateVersion: status.consent.templateVersion, signedAt: status.consent.signedAt, channels: status.channels, crop: status.crop } : null,
@@ -103,6 +104,7 @@ export function registerShowcaseRoutes(r: Router, { db, config, storage, mailer 
   r.get('/api/showcase-requests', allow('admin'), queue, async (req, res) => {
     const { query } = parsed(req, queue);
     const rows = await requests.find({ where: query.state ? { state: query.state } : {}, order: { requestedAt: 'DESC' }, take: 200 });
+    await auditListRead(db, req, 'showcase-queue', { state: query.state ?? null });
     res.json(await views(rows));
   });
 

@@ -9,7 +9,7 @@ import type { Deps } from '../../deps.js';
 import { Patient } from '../../entities/patient.js';
 import { ReferencePicture } from '../../entities/reference-picture.js';
 import { Visit } from '../../entities/visit.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditPatientRead } from '../../lib/audit.js';
 import { badRequest, HttpError, notFound } from '../../lib/errors.js';
 import { newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
@@ -112,6 +112,7 @@ export function registerReferencePictureRoutes(r: Router, { db, storage }: Deps)
     const { params } = parsed(req, list);
     if (!(await db.getRepository(Patient).existsBy({ id: params.id }))) throw notFound('Patient');
     const rows = await pictures.find({ where: { patientId: params.id, removedAt: IsNull() }, order: { uploadedAt: 'DESC' } });
+    await auditPatientRead(db, req, { action: 'reference-picture.list', patientId: params.id, targetType: 'patient', targetId: params.id });
     res.json(rows.map(view));
   });
 
@@ -120,7 +121,9 @@ export function registerReferencePictureRoutes(r: Router, { db, storage }: Deps)
     const { params, query } = parsed(req, file);
     const p = await pictures.findOneBy({ id: params.id, removedAt: IsNull() });
     if (!p) throw notFound('Reference picture');
-    if (query.variant === 'display') await audit(db, req, { action: 'reference-picture.view', patientId: p.patientId, targetType: 'reference-picture', targetId: p.id });
+    const read = { action: `reference-picture.${query.variant === 'display' ? 'view' : 'thumbnail.view'}`, patientId: p.patientId, targetType: 'reference-picture', targetId: p.id };
+    // A full-size view is its own entry; thumbnails are covered by the screen's entry (see auditPatientRead).
+    await (query.variant === 'display' ? audit(db, req, read) : auditPatientRead(db, req, read));
     const object = await storage.stream(query.variant === 'thumb' ? p.thumbKey : p.key);
     res.set({ 'Content-Type': 'image/jpeg', 'Cache-Control': 'private, max-age=31536000, immutable', ETag: `"${p.id}-${query.variant}"` });
     if (req.fresh) {

@@ -6,7 +6,7 @@ import type { Deps } from '../../deps.js';
 import { Patient } from '../../entities/patient.js';
 import { User } from '../../entities/user.js';
 import { Visit } from '../../entities/visit.js';
-import { audit } from '../../lib/audit.js';
+import { audit, auditListRead, auditPatientRead } from '../../lib/audit.js';
 import { badRequest, forbidden, notFound } from '../../lib/errors.js';
 import { dayBoundsUtc, dayIn, newId, nowIso } from '../../lib/time.js';
 import { parsed, uuidParam, validate } from '../../lib/validate.js';
@@ -41,6 +41,7 @@ export function registerVisitRoutes(r: Router, { db, config }: Deps): void {
     const { params } = parsed(req, list);
     if (!(await db.getRepository(Patient).existsBy({ id: params.id }))) throw notFound('Patient');
     const rows = await visits.find({ where: { patientId: params.id }, relations: { practitioner: true }, order: { startsAt: 'DESC' } });
+    await auditPatientRead(db, req, { action: 'visit.list', patientId: params.id, targetType: 'patient', targetId: params.id });
     res.json(rows.map((v) => visitView(v, req)));
   });
 
@@ -75,6 +76,7 @@ export function registerVisitRoutes(r: Router, { db, config }: Deps): void {
     const { params } = parsed(req, one);
     const visit = await visits.findOne({ where: { id: params.id }, relations: { practitioner: true, patient: true } });
     if (!visit) throw notFound('Visit');
+    await auditPatientRead(db, req, { action: 'visit.view', patientId: visit.patientId, targetType: 'visit', targetId: visit.id });
     res.json(visitView(visit, req));
   });
 
@@ -100,6 +102,7 @@ export function registerVisitRoutes(r: Router, { db, config }: Deps): void {
     const { timeZone } = await getSettings(db, config);
     const date = query.date ?? dayIn(timeZone);
     const { start, end } = dayBoundsUtc(date, timeZone);
+    await auditListRead(db, req, 'clinic-day', { date });
     const rows = await visits
       .createQueryBuilder('v')
       .leftJoinAndSelect('v.patient', 'patient')
