@@ -15,6 +15,7 @@ import { registerOutboxRoutes } from './features/outbox/outbox.routes.js';
 import { registerAccessLogRoutes } from './features/access-log/access-log.routes.js';
 import { registerPatientDataRoutes } from './features/patient-data/patient-data.routes.js';
 import { registerShowcaseRoutes } from './features/showcase/showcase.routes.js';
+import { registerStockRoutes } from './features/stock/stock.routes.js';
 import { registerSettingsRoutes } from './features/settings/settings.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
 import { registerLandmarkRoutes } from './features/landmarks/landmarks.routes.js';
@@ -49,6 +50,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerTemplateRoutes(r, deps);
   registerProductRoutes(r, deps);
   registerTreatmentRoutes(r, deps);
+  registerStockRoutes(r, deps);
   registerReferencePictureRoutes(r, deps);
   registerReminderRoutes(r, deps);
   registerClinicDayRoutes(r, deps);
