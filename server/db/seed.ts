@@ -1,13 +1,14 @@
 import type { DataSource } from 'typeorm';
 import { hashPassword } from '../auth/passwords.js';
 import { insertDemoTemplates } from '../features/consents/demo-templates.js';
+import { insertDemoStock } from '../features/stock/demo-stock.js';
 import { insertDemoProducts } from '../features/treatments/demo-products.js';
 import { insertDemoTreatments } from '../features/treatments/demo-treatments.js';
 import { loadConfig } from '../config.js';
 import { Patient } from '../entities/patient.js';
 import { User, type Role } from '../entities/user.js';
 import { Visit, type VisitKind, type VisitStatus } from '../entities/visit.js';
-import { newId, nowIso } from '../lib/time.js';
+import { dayIn, newId, nowIso } from '../lib/time.js';
 
 /** Demo sign-ins, printed at start in demo mode. All people and the clinic are invented. */
 export const DEMO_USERS: { email: string; name: string; role: Role; password: string }[] = [
@@ -104,7 +105,9 @@ export async function seedDemo(db: DataSource): Promise<boolean> {
       visits.push({ id: newId(), patientId: patients[pi].id, practitionerId: practitioners[k % practitioners.length].id, startsAt: atHour(0, hour, minute), kind, status, notes: '', createdAt: now, updatedAt: now });
     });
     for (const v of visits) await tx.getRepository(Visit).insert(v);
-    await insertDemoTreatments(tx, { visits, products, config: loadConfig(), now: new Date() });
+    const config = loadConfig();
+    await insertDemoTreatments(tx, { visits, products, config, now: new Date() });
+    await insertDemoStock(tx, { products, receivedById: practitioners[0].id, today: dayIn(config.clinicTimeZone) });
   });
   return true;
 }

@@ -1,7 +1,7 @@
 import { useEffect, useRef } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { Navigate, NavLink, Outlet, useLocation, useNavigate } from 'react-router-dom';
-import { CalendarDays, LogOut, ShieldCheck, Users, type LucideIcon } from 'lucide-react';
+import { CalendarDays, LogOut, Package, ShieldCheck, Users, type LucideIcon } from 'lucide-react';
 import { Logo } from '../components/ui/logo';
 import { Spinner } from '../components/ui/page';
 import { onSessionEnded } from '../lib/api-client';
@@ -14,6 +14,7 @@ import type { Me, Role } from '../features/auth/types';
 export const NAV: { to: string; label: string; icon: LucideIcon; roles: Role[] }[] = [
   { to: '/', label: 'Clinic day', icon: CalendarDays, roles: ['admin', 'practitioner', 'coordinator'] },
   { to: '/patients', label: 'Patients', icon: Users, roles: ['admin', 'practitioner', 'coordinator'] },
+  { to: '/stock', label: 'Stock', icon: Package, roles: ['admin', 'practitioner', 'coordinator'] },
   { to: '/admin', label: 'Admin', icon: ShieldCheck, roles: ['admin'] },
 ];
 

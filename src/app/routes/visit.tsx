@@ -3,6 +3,7 @@ import { VisitOpenItems } from '../../features/consents/components/open-items';
 import { VisitPhotosCard } from '../../features/photos/components/visit-photos-card';
 import { ConsultationForm } from '../../features/treatments/components/consultation-form';
 import { ScreeningReviewCard } from '../../features/treatments/components/screening-review';
+import { EmergencyKitNotice } from '../../features/stock/components/emergency-kit-notice';
 import { TreatmentEditor } from '../../features/treatments/components/treatment-editor';
 import { useVisit } from '../../features/visits/api/visits';
 import { VisitHeader } from '../../features/visits/components/visit-header';
@@ -23,7 +24,12 @@ export function VisitRoute() {
           <ScreeningReviewCard visitId={visitId} />
           <VisitPhotosCard visitId={visitId} shotListId={visit.shotListId} />
           <ConsultationForm key={`c-${visitId}`} visitId={visitId} patientId={visit.patientId} defaultOpen={visit.kind === 'consultation'} />
-          {visit.kind !== 'consultation' && <TreatmentEditor key={`t-${visitId}`} visitId={visitId} patientId={visit.patientId} />}
+          {visit.kind !== 'consultation' && (
+            <>
+              <EmergencyKitNotice />
+              <TreatmentEditor key={`t-${visitId}`} visitId={visitId} patientId={visit.patientId} />
+            </>
+          )}
         </>
       )}
     </div>
