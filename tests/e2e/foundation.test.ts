@@ -16,9 +16,9 @@ describe.skipIf(!browserAvailable)('foundation in Chromium at tablet size', () =
   });
 
   const expectedNav = {
-    admin: ['Clinic day', 'Patients', 'Admin'],
-    practitioner: ['Clinic day', 'Patients'],
-    coordinator: ['Clinic day', 'Patients'],
+    admin: ['Clinic day', 'Patients', 'Stock', 'Admin'],
+    practitioner: ['Clinic day', 'Patients', 'Stock'],
+    coordinator: ['Clinic day', 'Patients', 'Stock'],
   } as const;
 
   for (const role of ['admin', 'practitioner', 'coordinator'] as const) {
