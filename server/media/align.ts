@@ -5,8 +5,8 @@
  * Coordinates are continuous pixel coordinates with (0, 0) at the image's top-left corner (pixel i covers [i, i+1)).
  */
 import sharp, { type Sharp } from 'sharp';
-import { toAffine, umeyama, type AffineMatrix, type Point, type Similarity } from './umeyama.js';
-import { frameAnchors, type ViewDef } from './views.js';
+import { residualRms, toAffine, umeyama, type AffineMatrix, type Point, type Similarity } from './umeyama.js';
+import type { FitPoints, ViewDef } from './views.js';
 
 export type AlignedFormat = 'jpeg' | 'webp';
 
@@ -28,20 +28,21 @@ export interface Rendered {
 }
 
 export interface AlignResult extends Rendered {
-  /** Photo → frame, as fitted from the anchors. */
+  /** Photo → frame. */
   transform: Similarity;
   /** The same as a row-major 2×3 matrix, as stored on the photo. */
   matrix: AffineMatrix;
-  /** RMS distance of the anchors from their frame positions after the transform, frame pixels (0 for two anchors). */
+  /** RMS distance of the fitted points from their frame positions after the transform, frame pixels (0 for two anchors). */
   residual: number;
 }
 
 /** Neutral grey around the photo where the frame reaches past it (DESIGN §9: no coloured frames). */
 export const FRAME_BACKGROUND = { r: 128, g: 128, b: 128 };
 
-/** Fits the view's transform from the photo's anchors (in the photo's pixels) to the frame's anchor positions. */
-export function viewTransform(view: ViewDef, anchors: readonly Point[]): Similarity {
-  return umeyama(anchors, frameAnchors(view));
+/** Fits the view's transform: the photo's points (its pixels) onto their frame positions, least squares (FACTS 1). */
+export function viewTransform(fit: FitPoints): { transform: Similarity; residual: number } {
+  const transform = umeyama(fit.src, fit.dst);
+  return { transform, residual: residualRms(transform, fit.src, fit.dst) };
 }
 
 /**
@@ -147,17 +148,8 @@ export async function renderAligned(
   return finish(out);
 }
 
-/** Fits the view's transform from the anchors and renders the aligned photo in the view's standard frame. */
-export async function alignPhoto(image: Buffer, view: ViewDef, anchors: readonly Point[], opts: RenderOptions = {}): Promise<AlignResult> {
-  const transform = viewTransform(view, anchors);
-  const matrix = toAffine(transform);
-  const targets = frameAnchors(view);
-  let s = 0;
-  anchors.forEach((p, i) => {
-    const X = matrix[0][0] * p[0] + matrix[0][1] * p[1] + matrix[0][2];
-    const Y = matrix[1][0] * p[0] + matrix[1][1] * p[1] + matrix[1][2];
-    s += (X - targets[i][0]) ** 2 + (Y - targets[i][1]) ** 2;
-  });
+/** Renders the aligned photo by `transform` (fitted, maybe refined) in the view's standard frame. */
+export async function alignPhoto(image: Buffer, view: ViewDef, transform: Similarity, residual: number, opts: RenderOptions = {}): Promise<AlignResult> {
   const rendered = await renderAligned(image, transform, view.frame, opts);
-  return { ...rendered, transform, matrix, residual: Math.sqrt(s / anchors.length) };
+  return { ...rendered, transform, matrix: toAffine(transform), residual };
 }

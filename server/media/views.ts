@@ -5,6 +5,7 @@
  * Point indices follow the iBUG 300-W 68-point markup (FACTS 5): 0-based, the subject's right eye is 36–41
  * (on the image's left in a frontal photo), the subject's left eye 42–47.
  */
+import type { Rect } from './quality.js';
 import type { Point } from './umeyama.js';
 
 export const VIEW_KEYS = [
@@ -28,7 +29,7 @@ export interface AnchorDef {
   frame: Point;
 }
 
-/** How a view is aligned: the 68-point model on the eye centres, on the lip corners, or anchors placed by hand. */
+/** How a view is aligned: on the face's stable points, on the lip corners, or anchors placed by hand. */
 export type AnchorKind = 'face' | 'lips' | 'profile';
 
 export interface ViewDef {
@@ -43,13 +44,52 @@ export interface ViewDef {
   measured: boolean;
   frame: { width: number; height: number };
   anchors: readonly AnchorDef[];
+  /**
+   * Points of a full 68-point set the transform is fitted on, and where each sits in the frame. Views without it
+   * fit their anchors alone.
+   */
+  stable?: { from68: readonly number[]; frame: readonly Point[] };
+  /** Region of the frame that treatment does not change, where image registration refines the fit (frame pixels). */
+  stableRegion: Rect;
 }
+
 
 const RIGHT_EYE = [36, 37, 38, 39, 40, 41] as const;
 const LEFT_EYE = [42, 43, 44, 45, 46, 47] as const;
 
 // Portrait 4:5 frame; interpupillary distance 300 px leaves room for the hair above and the neck below.
 const FRONTAL_FRAME = { width: 1200, height: 1500 };
+
+/**
+ * A reference face in the frontal frame: the mean 68-point shape of the 43 faces in dlib's example landmark files
+ * (CC public domain; their points come from dlib's 68-point model), aligned by generalised Procrustes, made
+ * left–right symmetric and placed with the eye centres on the frontal anchors (450, 620) and (750, 620).
+ * Recomputed by the media-align test from those files when they are present.
+ */
+export const REFERENCE_FACE_68: readonly Point[] = [
+  [244.3, 641.2], [248.1, 735.0], [256.8, 826.5], [275.1, 917.5], [311.7, 1001.6], [369.2, 1072.9],
+  [438.5, 1133.8], [514.9, 1183.3], [600.0, 1197.0], [685.1, 1183.3], [761.5, 1133.8], [830.8, 1072.9],
+  [888.3, 1001.6], [924.9, 917.5], [943.2, 826.5], [952.0, 735.0], [955.8, 641.2], [321.5, 557.3],
+  [361.2, 516.3], [418.5, 500.1], [479.3, 505.0], [537.4, 527.8], [662.6, 527.8], [720.7, 505.0],
+  [781.5, 500.1], [838.8, 516.3], [878.5, 557.3], [600.0, 605.9], [600.0, 663.1], [600.0, 719.7],
+  [600.0, 779.9], [529.3, 819.9], [563.2, 833.6], [600.0, 844.9], [636.8, 833.6], [670.7, 819.9],
+  [392.9, 623.0], [429.8, 603.6], [471.3, 603.1], [507.6, 625.7], [470.2, 632.2], [428.3, 632.4],
+  [692.4, 625.7], [728.7, 603.1], [770.2, 603.6], [807.1, 623.0], [771.7, 632.4], [729.8, 632.2],
+  [454.6, 934.9], [504.7, 907.7], [560.9, 899.5], [600.0, 905.4], [639.1, 899.5], [695.3, 907.7],
+  [745.4, 934.9], [698.4, 993.2], [642.6, 1015.4], [600.0, 1018.9], [557.4, 1015.4], [501.6, 993.2],
+  [475.2, 937.9], [560.4, 923.4], [600.0, 927.8], [639.5, 923.4], [724.8, 937.9], [641.2, 974.0],
+  [600.0, 979.2], [558.8, 974.0],
+];
+
+/**
+ * The points a frontal photo is fitted on: brows 17–26, nose 27–35 and eyes 36–47. Many points average out the
+ * detector's jitter (two eye centres alone multiply it towards the mouth), and none of them is on the lips, jaw or
+ * chin, which treatment and expression move.
+ */
+export const STABLE_68 = Array.from({ length: 31 }, (_, i) => 17 + i);
+const frontalStable = { from68: STABLE_68, frame: STABLE_68.map((i) => REFERENCE_FACE_68[i]) };
+/** Brows to the base of the nose, between the outer brow ends: no lip, no jaw. */
+const FRONTAL_STABLE_REGION: Rect = { x: 300, y: 450, width: 600, height: 420 };
 const frontalAnchors: readonly AnchorDef[] = [
   { key: 'right-eye-centre', label: "Centre of the patient's right eye", from68: RIGHT_EYE, frame: [450, 620] },
   { key: 'left-eye-centre', label: "Centre of the patient's left eye", from68: LEFT_EYE, frame: [750, 620] },
@@ -57,6 +97,8 @@ const frontalAnchors: readonly AnchorDef[] = [
 
 // Landscape 8:5 frame for the close-up; the mouth spans the middle 40 % so a fuller or puckered lip still fits.
 const LIPS_FRAME = { width: 1600, height: 1000 };
+/** Above the upper lip (nose base and philtrum) in the close-up frame; the lips themselves stay out. */
+const LIPS_STABLE_REGION: Rect = { x: 400, y: 40, width: 800, height: 280 };
 const lipsAnchors: readonly AnchorDef[] = [
   { key: 'right-lip-corner', label: "Patient's right lip corner", from68: [48], frame: [480, 500] },
   { key: 'left-lip-corner', label: "Patient's left lip corner", from68: [54], frame: [1120, 500] },
@@ -89,16 +131,22 @@ function sideAnchors(side: 'left' | 'right', turnDeg: number): readonly AnchorDe
     { key: 'chin', label: 'Chin (lowest front point)', from68: [8], frame: [eyeX + ahead(35), 600 + 110 * PX_PER_MM] },
   ];
 }
+/** Around the near eye and the nose, down to the nose tip: the part of a turned face that treatment of the lips leaves alone. */
+function sideStableRegion(side: 'left' | 'right', turnDeg: number): Rect {
+  const [eye, nose] = sideAnchors(side, turnDeg);
+  const x0 = Math.min(eye.frame[0], nose.frame[0]) - 90, x1 = Math.max(eye.frame[0], nose.frame[0]) + 90;
+  return { x: x0, y: eye.frame[1] - 130, width: x1 - x0, height: nose.frame[1] - eye.frame[1] + 150 };
+}
 
 export const VIEWS: Readonly<Record<ViewKey, ViewDef>> = {
-  'frontal-rest': { key: 'frontal-rest', kind: 'face', label: 'Frontal, at rest', expectedYaw: 0, yawTolerance: 10, measured: true, frame: FRONTAL_FRAME, anchors: frontalAnchors },
-  'frontal-smile': { key: 'frontal-smile', kind: 'face', label: 'Frontal, smiling', expectedYaw: 0, yawTolerance: 10, measured: false, frame: FRONTAL_FRAME, anchors: frontalAnchors },
-  'lips-rest': { key: 'lips-rest', kind: 'lips', label: 'Lips close-up, at rest', expectedYaw: 0, yawTolerance: 10, measured: true, frame: LIPS_FRAME, anchors: lipsAnchors },
-  'lips-pucker': { key: 'lips-pucker', kind: 'lips', label: 'Lips close-up, pucker', expectedYaw: 0, yawTolerance: 10, measured: false, frame: LIPS_FRAME, anchors: lipsAnchors },
-  'oblique-left': { key: 'oblique-left', kind: 'face', label: 'Oblique left 45°', expectedYaw: 45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 45) },
-  'oblique-right': { key: 'oblique-right', kind: 'face', label: 'Oblique right 45°', expectedYaw: -45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 45) },
-  'lateral-left': { key: 'lateral-left', kind: 'profile', label: 'Lateral left 90°', expectedYaw: 90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 90) },
-  'lateral-right': { key: 'lateral-right', kind: 'profile', label: 'Lateral right 90°', expectedYaw: -90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 90) },
+  'frontal-rest': { key: 'frontal-rest', kind: 'face', label: 'Frontal, at rest', expectedYaw: 0, yawTolerance: 10, measured: true, frame: FRONTAL_FRAME, anchors: frontalAnchors, stable: frontalStable, stableRegion: FRONTAL_STABLE_REGION },
+  'frontal-smile': { key: 'frontal-smile', kind: 'face', label: 'Frontal, smiling', expectedYaw: 0, yawTolerance: 10, measured: false, frame: FRONTAL_FRAME, anchors: frontalAnchors, stable: frontalStable, stableRegion: FRONTAL_STABLE_REGION },
+  'lips-rest': { key: 'lips-rest', kind: 'lips', label: 'Lips close-up, at rest', expectedYaw: 0, yawTolerance: 10, measured: true, frame: LIPS_FRAME, anchors: lipsAnchors, stableRegion: LIPS_STABLE_REGION },
+  'lips-pucker': { key: 'lips-pucker', kind: 'lips', label: 'Lips close-up, pucker', expectedYaw: 0, yawTolerance: 10, measured: false, frame: LIPS_FRAME, anchors: lipsAnchors, stableRegion: LIPS_STABLE_REGION },
+  'oblique-left': { key: 'oblique-left', kind: 'face', label: 'Oblique left 45°', expectedYaw: 45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 45), stableRegion: sideStableRegion('left', 45) },
+  'oblique-right': { key: 'oblique-right', kind: 'face', label: 'Oblique right 45°', expectedYaw: -45, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 45), stableRegion: sideStableRegion('right', 45) },
+  'lateral-left': { key: 'lateral-left', kind: 'profile', label: 'Lateral left 90°', expectedYaw: 90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('left', 90), stableRegion: sideStableRegion('left', 90) },
+  'lateral-right': { key: 'lateral-right', kind: 'profile', label: 'Lateral right 90°', expectedYaw: -90, yawTolerance: 15, measured: false, frame: SIDE_FRAME, anchors: sideAnchors('right', 90), stableRegion: sideStableRegion('right', 90) },
 };
 
 export function isViewKey(v: string): v is ViewKey {
@@ -132,4 +180,22 @@ export function anchorsFrom68(view: ViewDef, points: readonly Point[]): Point[] 
 
 export function frameAnchors(view: ViewDef): Point[] {
   return view.anchors.map((a) => a.frame);
+}
+
+/** Photo points and their frame positions for the view's transform fit. */
+export interface FitPoints {
+  src: Point[];
+  dst: Point[];
+  /** `stable-points`: the view's stable 68-point subset; `anchors`: the view's anchors (read from the points or placed). */
+  from: 'stable-points' | 'anchors';
+}
+
+const placed = (p: Point | null | undefined): p is Point => !!p && Number.isFinite(p[0]) && Number.isFinite(p[1]);
+
+/** The fit for a photo: the stable points when all of them are marked, else the anchors. */
+export function fitPoints(view: ViewDef, points: readonly (Point | null | undefined)[] | null, anchors: readonly Point[]): FitPoints {
+  if (view.stable && points && points.length === 68 && view.stable.from68.every((i) => placed(points[i]))) {
+    return { src: view.stable.from68.map((i) => points[i] as Point), dst: [...view.stable.frame], from: 'stable-points' };
+  }
+  return { src: [...anchors], dst: frameAnchors(view), from: 'anchors' };
 }

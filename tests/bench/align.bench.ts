@@ -13,11 +13,11 @@
 import 'reflect-metadata';
 import { performance } from 'node:perf_hooks';
 import sharp from 'sharp';
-import { alignPhoto } from '../../server/media/align.js';
+import { alignPhoto, viewTransform } from '../../server/media/align.js';
 import { decodeForModel, detectLandmarks, loadLandmarkModel, runLandmarkModel } from '../../server/media/landmarks.js';
 import { changeSince, measureLips } from '../../server/media/measurements.js';
 import { estimatePose, poseWarnings } from '../../server/media/pose.js';
-import { anchorsFrom68, VIEWS } from '../../server/media/views.js';
+import { anchorsFrom68, fitPoints, VIEWS } from '../../server/media/views.js';
 import { renderSyntheticFace } from '../fixtures/synthetic-face.js';
 
 const N = Number(process.env.BENCH_N ?? 15);
@@ -71,9 +71,10 @@ async function main() {
   if (!found) throw new Error('the bench face was not found');
   const view = VIEWS['frontal-rest'];
   const anchors = anchorsFrom68(view, found.points);
-  await alignPhoto(jpeg, view, anchors);
-  const align = await time(N, () => alignPhoto(jpeg, view, anchors));
-  const alignStored = await time(Math.max(3, Math.floor(N / 3)), () => alignPhoto(jpeg, view, anchors, { formats: ['webp', 'jpeg'], raw: true }));
+  const fitted = () => viewTransform(fitPoints(view, found.points, anchors));
+  await alignPhoto(jpeg, view, fitted().transform, 0);
+  const align = await time(N, () => { const f = fitted(); return alignPhoto(jpeg, view, f.transform, f.residual); });
+  const alignStored = await time(Math.max(3, Math.floor(N / 3)), () => { const f = fitted(); return alignPhoto(jpeg, view, f.transform, f.residual, { formats: ['webp', 'jpeg'], raw: true }); });
 
   const baseline = measureLips(found.points);
   const basePose = estimatePose(view, found.points, anchors);

@@ -1,9 +1,10 @@
 import sharp from 'sharp';
 import { ssim } from 'ssim.js';
 import { describe, expect, it } from 'vitest';
-import { alignPhoto, renderAligned } from '../../server/media/align.js';
-import { type Point } from '../../server/media/umeyama.js';
-import { VIEWS } from '../../server/media/views.js';
+import { alignPhoto, renderAligned, viewTransform } from '../../server/media/align.js';
+import { applySimilarity, type Point, umeyama } from '../../server/media/umeyama.js';
+import { frameAnchors, REFERENCE_FACE_68, VIEWS } from '../../server/media/views.js';
+import { dlibFaces, dlibFacesDir } from '../helpers/reference-photos.js';
 import { renderSyntheticFace } from '../fixtures/synthetic-face.js';
 
 async function rgba(buf: Buffer) {
@@ -24,8 +25,10 @@ describe('alignment', () => {
     const warped = await renderSyntheticFace({ transform: { scale: 0.8, angleDeg: 14, translate: [190, -20] } });
     const anchorsOf = (f: typeof original): Point[] => [f.anchors.rightEyeCentre, f.anchors.leftEyeCentre];
 
-    const a = await alignPhoto(original.data, view, anchorsOf(original));
-    const b = await alignPhoto(warped.data, view, anchorsOf(warped));
+    const fit = (f: typeof original) => viewTransform({ src: anchorsOf(f), dst: frameAnchors(view), from: 'anchors' });
+    const fa = fit(original), fb = fit(warped);
+    const a = await alignPhoto(original.data, view, fa.transform, fa.residual);
+    const b = await alignPhoto(warped.data, view, fb.transform, fb.residual);
     expect([a.width, a.height]).toEqual([view.frame.width, view.frame.height]);
     expect(b.transform.scale / a.transform.scale).toBeCloseTo(1 / 0.8, 9);
     expect(((b.transform.angle - a.transform.angle) * 180) / Math.PI).toBeCloseTo(-14, 9);
@@ -80,5 +83,35 @@ describe('alignment', () => {
     expect(Math.abs(at(80, 100) - 128)).toBeGreaterThan(10);
     const jpeg = await renderAligned(face.data, { scale: 1, angle: 0, translation: [5000, 0] }, { width: 64, height: 48 });
     expect((await sharp(jpeg.data).metadata()).format).toBe('jpeg');
+  });
+});
+
+describe('the reference face of the frontal frame', () => {
+  const dir = dlibFacesDir();
+  it.skipIf(!dir && !process.env.CI)("is the Procrustes mean of dlib's example 68-point shapes, symmetric, eyes on the frontal anchors", () => {
+    const shapes = dlibFaces(dir!).map((f) => f.points);
+    const centred = (ps: readonly Point[]): Point[] => {
+      const c = ps.reduce((s, p) => [s[0] + p[0] / ps.length, s[1] + p[1] / ps.length], [0, 0]);
+      const d = ps.map((p) => [p[0] - c[0], p[1] - c[1]] as Point);
+      const n = Math.sqrt(d.reduce((s, p) => s + p[0] ** 2 + p[1] ** 2, 0));
+      return d.map((p) => [p[0] / n, p[1] / n] as Point);
+    };
+    const onto = (ps: readonly Point[], target: readonly Point[]) => ps.map((p) => applySimilarity(umeyama(ps, target), p));
+    const average = (sets: Point[][]) => sets[0].map((_, i) => [sets.reduce((s, q) => s + q[i][0], 0) / sets.length, sets.reduce((s, q) => s + q[i][1], 0) / sets.length] as Point);
+    // Generalised Procrustes: align every shape to the running mean, average, normalise, repeat.
+    let mean = centred(shapes[0]);
+    for (let it = 0; it < 10; it++) mean = centred(average(shapes.map((s) => onto(s, mean))));
+    // Left–right symmetric: average with the mirrored shape (iBUG 300-W mirror pairs, FACTS 5).
+    const mirror = [...Array.from({ length: 17 }, (_, i) => 16 - i), ...Array.from({ length: 10 }, (_, i) => 26 - i), 27, 28, 29, 30, 35, 34, 33, 32, 31,
+      45, 44, 43, 42, 47, 46, 39, 38, 37, 36, 41, 40, 54, 53, 52, 51, 50, 49, 48, 59, 58, 57, 56, 55, 64, 63, 62, 61, 60, 67, 66, 65];
+    const flipped = mirror.map((i) => [-mean[i][0], mean[i][1]] as Point);
+    mean = average([mean, onto(flipped, mean)]);
+    const eyes = (ps: readonly Point[]) => [36, 42].map((k) => average(ps.slice(k, k + 6).map((p) => [p]))[0]);
+    const placed = mean.map((p) => applySimilarity(umeyama(eyes(mean), frameAnchors(VIEWS['frontal-rest'])), p));
+    expect(shapes.length).toBe(43);
+    placed.forEach((p, i) => {
+      expect(Math.abs(p[0] - REFERENCE_FACE_68[i][0])).toBeLessThan(0.2);
+      expect(Math.abs(p[1] - REFERENCE_FACE_68[i][1])).toBeLessThan(0.2);
+    });
   });
 });

@@ -85,7 +85,7 @@ export class AlignmentWorker {
       this.bytes.delete(id);
       try {
         if (!this.deps.db.isInitialized) continue;
-        await alignStoredPhoto(this.deps, id, bytes);
+        for (const next of await alignStoredPhoto(this.deps, id, bytes)) void this.enqueue(next);
       } catch (err) {
         await this.failed(id, err);
       } finally {

@@ -7,17 +7,18 @@ import { Photo, type PhotoVariant } from '../../entities/photo.js';
 import { ShotListView } from '../../entities/shot-list.js';
 import { Visit } from '../../entities/visit.js';
 import { nowIso } from '../../lib/time.js';
-import { alignPhoto } from '../../media/align.js';
+import { alignPhoto, viewTransform } from '../../media/align.js';
 import type { PipelineDeps } from '../../media/after-store.js';
 import { checkLandmarks } from '../../media/landmark-input.js';
 import { detectLandmarks } from '../../media/landmarks.js';
 import { LIP_POINTS, measureLips, rulerScale, type LipMeasurements } from '../../media/measurements.js';
 import { estimatePose } from '../../media/pose.js';
 import { assessQuality, pointsBox, skinPatches } from '../../media/quality.js';
-import { applyAffine, type Point } from '../../media/umeyama.js';
-import { resolveView, type AnchorKind, type ViewDef } from '../../media/views.js';
+import { refineAgainst } from '../../media/refine.js';
+import { applyAffine, type Point, type Similarity } from '../../media/umeyama.js';
+import { fitPoints, resolveView, type AnchorKind, type ViewDef } from '../../media/views.js';
 import { photoKey } from '../../storage/keys.js';
-import type { StoredAlignment, StoredLandmarks, StoredQuality, XY } from './landmarks.schemas.js';
+import type { RegistrationNote, StoredAlignment, StoredLandmarks, StoredQuality, XY } from './landmarks.schemas.js';
 
 /** The alignment definition of a photo's view, from the shot list of its visit. */
 export async function viewOfPhoto(db: DataSource | EntityManager, photo: Pick<Photo, 'visitId' | 'viewKey'>): Promise<ViewDef> {
@@ -53,15 +54,47 @@ export function measurementsOf(view: ViewDef, lm: StoredLandmarks | null): LipMe
 
 const clampPoint = (p: Point, w: number, h: number): XY => [Math.min(w, Math.max(0, p[0])), Math.min(h, Math.max(0, p[1]))];
 
+/** Registers a photo to a reference photo's aligned frame over the view's stable region (refine.ts). */
+async function registerTo(deps: PipelineDeps, view: ViewDef, bytes: Buffer, fitted: Similarity, reference: Photo): Promise<{ transform: Similarity; note: RegistrationNote } | null> {
+  const frame = alignedVariants(reference).find((v) => v.format === 'jpeg');
+  if (!frame || !reference.alignment) return null;
+  const r = await refineAgainst(await deps.storage.get(frame.key), view.stableRegion, bytes, fitted);
+  return {
+    transform: r.transform,
+    note: { photoId: reference.id, rev: reference.alignment.rev, rhoBefore: r.rhoBefore, rhoAfter: r.rhoAfter, shiftPx: r.shiftPx, accepted: r.accepted },
+  };
+}
+
+const byVisitOrder = (a: Photo, b: Photo) => (a.visit?.startsAt ?? '').localeCompare(b.visit?.startsAt ?? '') || a.capturedAt.localeCompare(b.capturedAt);
+
+/** The captured photos of one patient's view, in visit order (the first aligned one is the view's baseline). */
+async function photosOfView(db: DataSource, photo: Pick<Photo, 'patientId' | 'viewKey'>): Promise<Photo[]> {
+  const rows = await db.getRepository(Photo).find({ where: { patientId: photo.patientId, viewKey: photo.viewKey, state: 'captured' }, relations: { visit: true } });
+  return rows.sort(byVisitOrder);
+}
+
+/**
+ * The photo a follow-up is registered to: the view's baseline (its first aligned photo in visit order), unless this
+ * photo comes first, in which case it is the baseline and others are registered to it.
+ */
+function referenceOf(photo: Photo, ofView: Photo[]): Photo | null {
+  for (const p of ofView) {
+    if (p.id === photo.id) return null;
+    if (p.alignmentState === 'aligned' && p.alignment) return p;
+  }
+  return null;
+}
+
 /**
  * Brings one photo from "aligning" to "aligned" or "needs-landmarks". Writes only if the photo's landmark revision is
- * still the one it started from, so a run overtaken by an edit leaves the newer state alone.
+ * still the one it started from, so a run overtaken by an edit leaves the newer state alone. Answers the photos that
+ * must be registered again because this one became (or changed as) their baseline.
  */
-export async function alignStoredPhoto(deps: PipelineDeps, photoId: string, displayBytes?: Buffer): Promise<void> {
+export async function alignStoredPhoto(deps: PipelineDeps, photoId: string, displayBytes?: Buffer): Promise<string[]> {
   const { db, storage } = deps;
   const repo = db.getRepository(Photo);
   const photo = await repo.findOneBy({ id: photoId });
-  if (!photo || photo.alignmentState !== 'aligning') return;
+  if (!photo || photo.alignmentState !== 'aligning') return [];
   const rev = photo.landmarksRev;
   const view = await viewOfPhoto(db, photo);
   const display = displayVariant(photo);
@@ -72,8 +105,8 @@ export async function alignStoredPhoto(deps: PipelineDeps, photoId: string, disp
     const res = await repo.update({ id: photo.id, landmarksRev: rev }, { ...patch, variants, alignmentAttempts: 0 });
     if (res.affected && stale.length) await storage.remove(stale.map((v) => v.key));
   };
-  const needsLandmarks = (note: string, lm: StoredLandmarks | null) =>
-    save(
+  const needsLandmarks = async (note: string, lm: StoredLandmarks | null) => {
+    await save(
       {
         alignmentState: 'needs-landmarks',
         alignmentNote: note,
@@ -85,6 +118,8 @@ export async function alignStoredPhoto(deps: PipelineDeps, photoId: string, disp
       },
       false,
     );
+    return [];
+  };
 
   if (!display) return needsLandmarks('This photo has no display image to place landmarks on.', photo.landmarks);
   const bytes = displayBytes ?? (await storage.get(display.key));
@@ -116,9 +151,15 @@ export async function alignStoredPhoto(deps: PipelineDeps, photoId: string, disp
     return needsLandmarks(`${why}. Place the anchors by hand: ${anchorList(view)}.`, lm);
   }
   const anchors = checked.value.anchors;
-  const aligned = await alignPhoto(bytes, view, anchors, { formats: ['webp', 'jpeg'], raw: true });
+  const fit = fitPoints(view, lm.points, anchors);
+  const fitted = viewTransform(fit);
+  const ofView = await photosOfView(db, photo);
+  const reference = referenceOf(photo, ofView);
+  const refined = reference ? await registerTo(deps, view, bytes, fitted.transform, reference) : null;
+  const aligned = await alignPhoto(bytes, view, refined?.transform ?? fitted.transform, fitted.residual, { formats: ['webp', 'jpeg'], raw: true });
 
-  const nextRev = rev + 1;
+  // A new revision every run, so a re-registered photo's aligned file is not served from a cache.
+  const nextRev = Math.max(rev, photo.alignment?.rev ?? 0) + 1;
   const stored: PhotoVariant[] = aligned.encoded.map((e) => ({
     variant: 'aligned',
     format: e.format,
@@ -145,6 +186,8 @@ export async function alignStoredPhoto(deps: PipelineDeps, photoId: string, disp
     angleDeg: (aligned.transform.angle * 180) / Math.PI,
     residual: aligned.residual,
     anchors: anchors.map((p) => [p[0], p[1]]),
+    fit: fit.from,
+    registeredTo: refined?.note ?? null,
     alignedAt: nowIso(),
   };
   await save(
@@ -160,4 +203,9 @@ export async function alignStoredPhoto(deps: PipelineDeps, photoId: string, disp
     },
     true,
   );
+  if (reference) return [];
+  // This photo is the view's baseline: every other aligned photo of the view is registered to it, at this revision.
+  const stale = ofView.filter((p) => p.id !== photo.id && p.alignmentState === 'aligned' && (p.alignment?.registeredTo?.photoId !== photo.id || p.alignment.registeredTo.rev !== nextRev));
+  for (const p of stale) await repo.update({ id: p.id, landmarksRev: p.landmarksRev, alignmentState: 'aligned' }, { alignmentState: 'aligning' });
+  return stale.map((p) => p.id);
 }

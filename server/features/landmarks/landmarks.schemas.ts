@@ -37,10 +37,26 @@ export interface StoredAlignment {
   matrix: [[number, number, number], [number, number, number]];
   scale: number;
   angleDeg: number;
-  /** RMS distance of the anchors from their frame positions, frame pixels. */
+  /** RMS distance of the fitted points from their frame positions, frame pixels. */
   residual: number;
   anchors: XY[];
+  /** What the transform was fitted on: the view's stable 68-point subset, or its anchors. Absent on older rows. */
+  fit?: 'stable-points' | 'anchors';
+  /** Image registration to the view's baseline (or, for a lips close-up, to the visit's frontal photo). */
+  registeredTo?: RegistrationNote | null;
   alignedAt: string;
+}
+
+/** One registration run: to which photo (at which alignment revision), how well, and whether it was kept. */
+export interface RegistrationNote {
+  photoId: string;
+  rev: number;
+  /** Correlation coefficient over the stable region before and after (−1…1). */
+  rhoBefore: number;
+  rhoAfter: number;
+  /** Largest move of the stable region's corners from the landmark fit, frame pixels. */
+  shiftPx: number;
+  accepted: boolean;
 }
 
 export interface StoredQuality {
