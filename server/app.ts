@@ -66,7 +66,7 @@ export function buildApiRouter(deps: Deps): Router {
 /** The Express app without `listen()`, so tests can drive it with supertest. */
 export function createApp(deps: Deps, opts: { staticDir?: string } = {}): Express & { apiRouter: Router } {
   const app = express();
-  app.set('trust proxy', deps.config.secureCookies ? 1 : false);
+  app.set('trust proxy', deps.config.trustProxy);
   app.disable('x-powered-by');
   app.use(
     helmet({
@@ -106,7 +106,7 @@ export function createApp(deps: Deps, opts: { staticDir?: string } = {}): Expres
     next();
   });
   app.use('/api', express.json({ limit: '256kb' }));
-  app.locals.passport = installSessions(app, deps.db, deps.config);
+  app.locals.passport = installSessions(app, deps.db, deps.config, deps.mailer);
   app.use('/api', csrfProtection);
   // Review mode confines the whole API to one patient until staff confirm leaving it.
   app.use('/api', reviewLock(deps.db));

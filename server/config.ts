@@ -11,7 +11,11 @@ export interface Config {
   startFakes: boolean;
   sessionSecret: string;
   idleMinutes: number;
+  /** Absolute session lifetime (hours), the default of the clinic setting. */
+  sessionHours: number;
   secureCookies: boolean;
+  /** Express "trust proxy": false, a hop count, or addresses/subnets of the reverse proxies (TRUST_PROXY). */
+  trustProxy: boolean | number | string;
   clinicName: string;
   clinicTimeZone: string;
   /** Prefix of the short patient codes, e.g. "LR" gives LR-0001. */
@@ -61,6 +65,12 @@ function positive(value: string | undefined, fallback: number): number {
   return value && Number.isFinite(n) && n > 0 ? n : fallback;
 }
 
+/** `TRUST_PROXY`: unset or 0 → trust none; a number → that many hops; anything else → Express's address list. */
+function trustProxy(value: string | undefined): boolean | number | string {
+  if (!value || value === '0' || value === 'false') return false;
+  return /^\d+$/.test(value) ? Number(value) : value;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const dataDir = path.resolve(env.TWINFRAME_DATA_DIR ?? 'storage');
   const s3FakePort = int(env.S3_FAKE_PORT, 4569);
@@ -74,7 +84,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     startFakes: !externalS3 && env.TWINFRAME_FAKES !== '0',
     sessionSecret: env.SESSION_SECRET ?? 'twinframe-local-development-secret-change-me',
     idleMinutes: positive(env.TWINFRAME_IDLE_MINUTES, 15),
+    sessionHours: clamp(int(env.TWINFRAME_SESSION_HOURS, 12), 1, 24),
     secureCookies: env.COOKIE_SECURE === '1',
+    trustProxy: trustProxy(env.TRUST_PROXY),
     clinicName: env.TWINFRAME_CLINIC_NAME ?? 'Linden Row Aesthetics',
     clinicTimeZone: env.TWINFRAME_TIME_ZONE ?? 'Europe/London',
     patientCodePrefix: env.TWINFRAME_CODE_PREFIX ?? 'LR',

@@ -17,6 +17,8 @@ declare module 'express-session' {
   interface SessionData {
     /** Set while the device is in a patient's hand-over session; no staff user is signed in then. */
     handoverId?: string;
+    /** When the staff user signed in on this session; the absolute lifetime and "sessions valid from" count from it. */
+    signedInAt?: string;
   }
 }
 

@@ -1,15 +1,17 @@
-import type { Express, RequestHandler } from 'express';
+import type { Express, Request, RequestHandler } from 'express';
 import session from 'express-session';
 import passport from 'passport';
 import { Strategy as LocalStrategy } from 'passport-local';
 import { TypeormStore } from 'connect-typeorm';
 import { csrfSync } from 'csrf-sync';
-import type { DataSource } from 'typeorm';
+import type { DataSource, EntityManager } from 'typeorm';
+import { nowIso } from '../lib/time.js';
 import type { Config } from '../config.js';
 import { Session } from '../entities/session.js';
 import { User } from '../entities/user.js';
 import { getSettings } from '../features/settings/settings.service.js';
 import { checkCredentials } from './login.js';
+import type { Mailer } from '../mail/outbox.js';
 
 export const SESSION_COOKIE = 'tf.sid';
 
@@ -19,7 +21,7 @@ export const csrf = csrfSync({
 });
 
 /** Sessions in SQLite (they survive a restart), idle logoff through a rolling cookie, passport-local and CSRF. */
-export function installSessions(app: Express, db: DataSource, config: Config): passport.Authenticator {
+export function installSessions(app: Express, db: DataSource, config: Config, mailer?: Mailer): passport.Authenticator {
   // No fixed ttl: the store keeps each session as long as its cookie's maxAge, i.e. the idle timeout.
   const store = new TypeormStore({ cleanupLimit: 2 }).connect(db.getRepository(Session));
   app.use(
@@ -30,7 +32,6 @@ export function installSessions(app: Express, db: DataSource, config: Config): p
       resave: false,
       saveUninitialized: false,
       rolling: true,
-      proxy: config.secureCookies,
       cookie: {
         httpOnly: true,
         sameSite: 'strict',
@@ -51,18 +52,31 @@ export function installSessions(app: Express, db: DataSource, config: Config): p
   const pp = new passport.Passport();
   pp.use(
     new LocalStrategy({ usernameField: 'email', passwordField: 'password', passReqToCallback: true }, (req, email, password, done) => {
-      checkCredentials(db, req, email, password).then((user) => done(null, user), done);
+      checkCredentials(db, req, email, password, () => mailer?.kick()).then((user) => done(null, user), done);
     }),
   );
   pp.serializeUser((user, done) => done(null, user.id));
-  pp.deserializeUser((id: string, done) => {
-    db.getRepository(User)
-      .findOneBy({ id })
-      .then((u) => done(null, u && u.active ? { id: u.id, email: u.email, name: u.name, role: u.role } : false), done);
+  // Each request re-reads the user, so a deactivation, a password reset, a role change, "sign out everywhere" or
+  // the absolute lifetime ends the session at once on every instance (nothing is kept in process memory).
+  pp.deserializeUser((req: Request, id: string, done: (err: unknown, user?: Express.User | false) => void) => {
+    Promise.all([db.getRepository(User).findOneBy({ id }), getSettings(db, config)]).then(([u, settings]) => {
+      const signedInAt = req.session.signedInAt;
+      const alive =
+        u?.active &&
+        signedInAt !== undefined &&
+        (!u.sessionsValidFrom || signedInAt >= u.sessionsValidFrom) &&
+        Date.parse(signedInAt) + settings.sessionHours * 3_600_000 > Date.now();
+      done(null, alive ? { id: u.id, email: u.email, name: u.name, role: u.role } : false);
+    }, done);
   });
   app.use(pp.initialize());
   app.use(pp.session());
   return pp;
+}
+
+/** Ends every session of a user, on every device and instance, from now on. */
+export async function endUserSessions(db: DataSource | EntityManager, userId: string): Promise<void> {
+  await db.getRepository(User).update({ id: userId }, { sessionsValidFrom: nowIso() });
 }
 
 /** CSRF check for every state-changing request (GET, HEAD, OPTIONS are exempt). */

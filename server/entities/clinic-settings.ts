@@ -16,6 +16,10 @@ export class ClinicSettings {
   @Column('integer')
   idleMinutes: number;
 
+  /** Absolute session lifetime in hours: a sign-in ends after this however active it is (OWASP ASVS 3.3.2). */
+  @Column('integer', { default: 12 })
+  sessionHours: number;
+
   @Column('integer')
   reviewReminderDays: number;
 

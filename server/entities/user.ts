@@ -28,4 +28,8 @@ export class User {
 
   @Column('varchar', { length: 30 })
   updatedAt: string;
+
+  /** Sign-ins before this instant are no longer honoured (password reset, role change, deactivation, sign-out everywhere). */
+  @Column('varchar', { length: 30, nullable: true })
+  sessionsValidFrom: string | null;
 }

@@ -1,7 +1,7 @@
 import { useEffect, useRef } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { Navigate, NavLink, Outlet, useLocation, useNavigate } from 'react-router-dom';
-import { CalendarDays, LogOut, Package, ShieldCheck, Users, type LucideIcon } from 'lucide-react';
+import { CalendarDays, LogOut, MonitorOff, Package, ShieldCheck, Users, type LucideIcon } from 'lucide-react';
 import { Logo } from '../components/ui/logo';
 import { Spinner } from '../components/ui/page';
 import { onSessionEnded } from '../lib/api-client';
@@ -73,9 +73,9 @@ export function AppShell() {
               </NavLink>
             ))}
           </nav>
-          <UserMenu me={me} onSignOut={() => {
+          <UserMenu me={me} onSignOut={(everywhere) => {
               navigate('/sign-in', { replace: true });
-              logout.mutate();
+              logout.mutate({ everywhere });
             }} busy={logout.isPending} />
         </div>
       </header>
@@ -106,14 +106,24 @@ export function useIdleLogoff(minutes: number | undefined, onIdle: () => void) {
   }, [minutes]);
 }
 
-function UserMenu({ me, onSignOut, busy }: { me: Me; onSignOut: () => void; busy: boolean }) {
+function UserMenu({ me, onSignOut, busy }: { me: Me; onSignOut: (everywhere: boolean) => void; busy: boolean }) {
   return (
     <div className="flex shrink-0 items-center gap-2">
       <div className="hidden text-right leading-tight md:block">
         <p className="text-sm font-medium">{me.name}</p>
         <p className="text-xs text-ink-faint">{ROLE_NAME[me.role]}</p>
       </div>
-      <button type="button" onClick={onSignOut} disabled={busy} className="flex min-h-11 items-center gap-2 rounded-lg px-3 text-ink-muted hover:bg-paper-sunk hover:text-ink" aria-label="Sign out">
+      <button
+        type="button"
+        onClick={() => onSignOut(true)}
+        disabled={busy}
+        className="flex min-h-11 min-w-11 items-center justify-center rounded-lg text-ink-muted hover:bg-paper-sunk hover:text-ink"
+        aria-label="Sign out on every device"
+        title="Sign out on every device"
+      >
+        <MonitorOff className="size-5" aria-hidden />
+      </button>
+      <button type="button" onClick={() => onSignOut(false)} disabled={busy} className="flex min-h-11 items-center gap-2 rounded-lg px-3 text-ink-muted hover:bg-paper-sunk hover:text-ink" aria-label="Sign out">
         <LogOut className="size-5" aria-hidden />
         <span className="hidden text-sm sm:inline">Sign out</span>
       </button>

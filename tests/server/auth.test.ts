@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { AuditEvent } from '../../server/entities/audit-event.js';
-import { LOCKOUT } from '../../server/auth/login.js';
+import { THROTTLE } from '../../server/auth/login.js';
 import { Client, createUser, makeTestApp, signedIn, type TestApp } from '../helpers/app.js';
 
 let t: TestApp;
@@ -40,15 +40,15 @@ describe('sign-in', () => {
     expect(wrong.body.error.code).toBe('INVALID_CREDENTIALS');
   });
 
-  it('locks an e-mail after repeated failures, even with the right password', async () => {
+  it('slows an e-mail after repeated failures, even with the right password', async () => {
     const user = await createUser(t.db, 'admin');
     const c = new Client(t.app);
-    for (let i = 0; i < LOCKOUT.failures; i++) expect((await c.login(user.email, 'nope-nope')).status).toBe(401);
-    const locked = await c.login(user.email);
-    expect(locked.status).toBe(429);
-    expect(locked.body.error.code).toBe('LOCKED_OUT');
+    for (let i = 0; i < THROTTLE.freeFailures; i++) expect((await c.login(user.email, 'nope-nope')).status).toBe(401);
+    const slowed = await c.login(user.email);
+    expect(slowed.status).toBe(429);
+    expect(slowed.body.error.code).toBe('SIGN_IN_DELAY');
     const events = await t.db.getRepository(AuditEvent).findBy({ action: 'auth.login_failed', actorId: user.id });
-    expect(events).toHaveLength(LOCKOUT.failures);
+    expect(events).toHaveLength(THROTTLE.freeFailures);
   });
 
   it('refuses a state-changing call without a CSRF token', async () => {

@@ -17,10 +17,13 @@ export const EXPECTED: Record<string, Who[]> = {
   'POST /api/auth/login': ['public'],
   'POST /api/auth/logout': [...STAFF, 'handover'],
   'GET /api/auth/me': STAFF,
+  'POST /api/auth/sessions/end': STAFF,
   'GET /api/users': ['admin'],
   'POST /api/users': ['admin'],
   'PATCH /api/users/:id': ['admin'],
   'POST /api/users/:id/password': ['admin'],
+  'POST /api/users/:id/sessions/end': ['admin'],
+  'POST /api/users/:id/unlock': ['admin'],
   'GET /api/practitioners': STAFF,
   'GET /api/patients': STAFF,
   'POST /api/patients': STAFF,
@@ -170,7 +173,7 @@ describe('role matrix', () => {
     const failures: string[] = [];
     for (const key of routes()) {
       const [method, path] = key.split(' ');
-      if (key === 'POST /api/auth/logout' || key === 'POST /api/auth/login') continue; // would end or change the test sessions; covered in auth tests
+      if (['POST /api/auth/logout', 'POST /api/auth/login', 'POST /api/auth/sessions/end'].includes(key)) continue; // would end or change the test sessions; covered in auth and session tests
       const url = path.replace(/:[A-Za-z]+/g, FAKE_ID);
       const allowed = EXPECTED[key] ?? [];
       for (const who of ['anonymous', 'admin', 'practitioner', 'coordinator', 'handover'] as const) {

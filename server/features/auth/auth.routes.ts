@@ -1,6 +1,7 @@
 import type { Router } from 'express';
-import { allow, STAFF } from '../../auth/access.js';
-import { csrf } from '../../auth/session.js';
+import { allow, currentUser, STAFF } from '../../auth/access.js';
+import { csrf, endUserSessions, SESSION_COOKIE } from '../../auth/session.js';
+import { nowIso } from '../../lib/time.js';
 import type { Deps } from '../../deps.js';
 import { audit } from '../../lib/audit.js';
 import { HttpError } from '../../lib/errors.js';
@@ -22,6 +23,7 @@ export function registerAuthRoutes(r: Router, { db, config }: Deps): void {
       if (!user) return next(new HttpError(400, 'BAD_REQUEST', 'Enter your e-mail and password.'));
       req.login(user, (loginErr) => {
         if (loginErr) return next(loginErr);
+        req.session.signedInAt = nowIso();
         audit(db, req, { action: 'auth.login' })
           .then(() => me(user))
           .then((body) => res.json(body))
@@ -34,7 +36,17 @@ export function registerAuthRoutes(r: Router, { db, config }: Deps): void {
     await audit(db, req, { action: 'auth.logout' });
     await new Promise<void>((resolve, reject) => req.logout((e) => (e ? reject(e) : resolve())));
     await new Promise<void>((resolve, reject) => req.session.destroy((e) => (e ? reject(e) : resolve())));
-    res.clearCookie('tf.sid');
+    res.clearCookie(SESSION_COOKIE);
+    res.status(204).end();
+  });
+
+  /** "Sign out everywhere": ends every session of the signed-in user, this one included. */
+  r.post('/api/auth/sessions/end', allow(...STAFF), async (req, res) => {
+    const user = currentUser(req);
+    await endUserSessions(db, user.id);
+    await audit(db, req, { action: 'auth.sessions_end', targetType: 'user', targetId: user.id });
+    await new Promise<void>((resolve, reject) => req.session.destroy((e) => (e ? reject(e) : resolve())));
+    res.clearCookie(SESSION_COOKIE);
     res.status(204).end();
   });
 

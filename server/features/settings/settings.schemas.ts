@@ -22,6 +22,7 @@ export const settingsUpdateSchema = z
     clinicName: printable(120),
     timeZone: z.string().refine(isTimeZone, 'Not a known time zone (use a name like Europe/London).'),
     idleMinutes: z.number().int().min(2, 'At least 2 minutes.').max(60, 'At most 60 minutes: an unattended tablet must sign out.'),
+    sessionHours: z.number().int().min(1, 'At least 1 hour.').max(24, 'At most 24 hours: sign in again at least once a day.'),
     reviewReminderDays: z.number().int().min(14, 'Reviews are usually 2–4 weeks after treatment (14–28 days).').max(28, 'Reviews are usually 2–4 weeks after treatment (14–28 days).'),
     maintenanceReminderMonths: z.number().int().min(3, 'At least 3 months.').max(18, 'At most 18 months.'),
     retentionYears: z.number().int().min(0).max(100),

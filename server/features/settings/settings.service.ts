@@ -11,6 +11,7 @@ export function defaultSettings(config: Config): Settings {
     clinicName: config.clinicName,
     timeZone: config.clinicTimeZone,
     idleMinutes: config.idleMinutes,
+    sessionHours: config.sessionHours,
     // Review 2–4 weeks after filler, maintenance around 6 months (filler lasts about 6–9 months): common practice.
     reviewReminderDays: config.treatments.reviewDays,
     maintenanceReminderMonths: config.treatments.maintenanceMonths,

@@ -2,6 +2,8 @@ import type { Router } from 'express';
 import { z } from 'zod';
 import { allow, currentUser, STAFF } from '../../auth/access.js';
 import { hashPassword } from '../../auth/passwords.js';
+import { liftSignInLimits } from '../../auth/login.js';
+import { endUserSessions } from '../../auth/session.js';
 import type { Deps } from '../../deps.js';
 import { User } from '../../entities/user.js';
 import { audit } from '../../lib/audit.js';
@@ -67,9 +69,14 @@ export function registerUserRoutes(r: Router, { db }: Deps): void {
     if (user.id === me.id && (body.active === false || (body.role && body.role !== 'admin'))) {
       throw badRequest('You cannot deactivate yourself or remove your own admin role.');
     }
+    // A new role or a deactivation must not ride on sessions signed in under the old one.
+    const endSessions = (body.role !== undefined && body.role !== user.role) || (body.active === false && user.active);
     Object.assign(user, body, { updatedAt: nowIso() });
-    await users.save(user);
-    await audit(db, req, { action: 'user.update', targetType: 'user', targetId: user.id, details: body });
+    await db.transaction(async (tx) => {
+      await tx.getRepository(User).save(user);
+      if (endSessions) await endUserSessions(tx, user.id);
+      await audit(tx, req, { action: 'user.update', targetType: 'user', targetId: user.id, details: { ...body, sessionsEnded: endSessions } });
+    });
     res.json(publicUser(user));
   });
 
@@ -80,8 +87,31 @@ export function registerUserRoutes(r: Router, { db }: Deps): void {
     if (!user) throw notFound('User');
     user.passwordHash = await hashPassword(body.password);
     user.updatedAt = nowIso();
-    await users.save(user);
-    await audit(db, req, { action: 'user.password_reset', targetType: 'user', targetId: user.id });
+    await db.transaction(async (tx) => {
+      await tx.getRepository(User).save(user);
+      await endUserSessions(tx, user.id);
+      await audit(tx, req, { action: 'user.password_reset', targetType: 'user', targetId: user.id });
+    });
+    res.status(204).end();
+  });
+
+  const byId = validate({ params: idParams });
+  /** Signs a user out on every device (a lost tablet, a shared password). */
+  r.post('/api/users/:id/sessions/end', allow('admin'), byId, async (req, res) => {
+    const { params } = parsed(req, byId);
+    if (!(await users.existsBy({ id: params.id }))) throw notFound('User');
+    await endUserSessions(db, params.id);
+    await audit(db, req, { action: 'user.sessions_end', targetType: 'user', targetId: params.id });
+    res.status(204).end();
+  });
+
+  /** Lifts the sign-in delays and address limits of an account at once (see THROTTLE). */
+  r.post('/api/users/:id/unlock', allow('admin'), byId, async (req, res) => {
+    const { params } = parsed(req, byId);
+    const user = await users.findOneBy({ id: params.id });
+    if (!user) throw notFound('User');
+    const cleared = await liftSignInLimits(db, user.email);
+    await audit(db, req, { action: 'user.sign_in_unlock', targetType: 'user', targetId: user.id, details: { failuresCleared: cleared } });
     res.status(204).end();
   });
 }

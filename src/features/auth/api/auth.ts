@@ -35,10 +35,11 @@ export function useLogin() {
   });
 }
 
+/** Signs out here; with `everywhere`, ends this user's sessions on every device too. */
 export function useLogout() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: () => api<void>('/api/auth/logout', { method: 'POST' }),
+    mutationFn: (opts?: { everywhere?: boolean }) => api<void>(opts?.everywhere ? '/api/auth/sessions/end' : '/api/auth/logout', { method: 'POST' }),
     onSettled: () => {
       resetCsrf();
       qc.clear();

@@ -6,6 +6,7 @@ export interface ClinicSettings {
   clinicName: string;
   timeZone: string;
   idleMinutes: number;
+  sessionHours: number;
   reviewReminderDays: number;
   maintenanceReminderMonths: number;
   retentionYears: number;

@@ -8,7 +8,7 @@ import { ApiError } from '../../../lib/api-client';
 import { useSettings, useUpdateSettings, type ClinicSettings } from '../api/settings';
 
 type Draft = Omit<ClinicSettings, 'updatedAt'>;
-const NUMERIC = ['idleMinutes', 'reviewReminderDays', 'maintenanceReminderMonths', 'retentionYears'] as const;
+const NUMERIC = ['idleMinutes', 'sessionHours', 'reviewReminderDays', 'maintenanceReminderMonths', 'retentionYears'] as const;
 
 export function SettingsPage() {
   const { data, isPending } = useSettings();
@@ -48,6 +48,9 @@ export function SettingsPage() {
           </Field>
           <Field label="Automatic sign-out (minutes idle)" error={errors.idleMinutes} hint="2–60. An unattended tablet clears its screen after this.">
             {(p) => <Input {...p} type="number" min={2} max={60} {...bind('idleMinutes')} />}
+          </Field>
+          <Field label="Sign in again after (hours)" error={errors.sessionHours} hint="1–24. Every sign-in ends after this, however busy the day.">
+            {(p) => <Input {...p} type="number" min={1} max={24} {...bind('sessionHours')} />}
           </Field>
           <Field label="Clinical-record retention (years)" error={errors.retentionYears} hint="Erasure is refused until this long after the last visit.">
             {(p) => <Input {...p} type="number" min={0} max={100} {...bind('retentionYears')} />}

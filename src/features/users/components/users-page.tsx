@@ -1,5 +1,5 @@
 import { useState, type FormEvent } from 'react';
-import { KeyRound, UserPlus } from 'lucide-react';
+import { KeyRound, LockOpen, MonitorOff, UserPlus } from 'lucide-react';
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
 import { Card } from '../../../components/ui/card';
@@ -8,7 +8,7 @@ import { Field, Input, Select } from '../../../components/ui/field';
 import { Notice } from '../../../components/ui/notice';
 import { PageHeader, Spinner } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { useCreateUser, useResetPassword, useUpdateUser, useUsers } from '../api/users';
+import { useCreateUser, useEndUserSessions, useResetPassword, useUnlockUser, useUpdateUser, useUsers } from '../api/users';
 import { ROLE_LABEL, type Role, type StaffUser } from '../types';
 
 function errorsOf(err: unknown): Record<string, string> {
@@ -73,7 +73,7 @@ function ResetPasswordForm({ user, onDone }: { user: StaffUser; onDone: () => vo
       }}
     >
       {errors.root && <Notice tone="danger">{errors.root}</Notice>}
-      <p className="text-ink-muted">Set a new password for {user.name}. Their other sessions stay signed in until they expire.</p>
+      <p className="text-ink-muted">Set a new password for {user.name}. They are signed out on every device at once.</p>
       <Field label="New password" error={errors.password}>
         {(p) => <Input {...p} type="password" autoComplete="new-password" value={password} onChange={(e) => setPassword(e.target.value)} />}
       </Field>
@@ -92,6 +92,9 @@ function ResetPasswordForm({ user, onDone }: { user: StaffUser; onDone: () => vo
 export function UsersPage({ currentUserId }: { currentUserId: string }) {
   const { data, isPending, error } = useUsers();
   const update = useUpdateUser();
+  const endSessions = useEndUserSessions();
+  const unlock = useUnlockUser();
+  const [done, setDone] = useState<string | null>(null);
   const [creating, setCreating] = useState(false);
   const [resetting, setResetting] = useState<StaffUser | null>(null);
   return (
@@ -105,7 +108,8 @@ export function UsersPage({ currentUserId }: { currentUserId: string }) {
           </Button>
         }
       />
-      {(error || update.error) && <Notice tone="danger">{(error ?? update.error)?.message}</Notice>}
+      {(error || update.error || endSessions.error || unlock.error) && <Notice tone="danger">{(error ?? update.error ?? endSessions.error ?? unlock.error)?.message}</Notice>}
+      {done && <Notice tone="done">{done}</Notice>}
       {isPending ? (
         <Spinner label="Loading users" />
       ) : (
@@ -133,6 +137,23 @@ export function UsersPage({ currentUserId }: { currentUserId: string }) {
                 </Select>
                 <Button size="icon" aria-label={`Reset password of ${u.name}`} title="Reset password" onClick={() => setResetting(u)}>
                   <KeyRound className="size-4" />
+                </Button>
+                <Button
+                  size="icon"
+                  aria-label={`Sign ${u.name} out on every device`}
+                  title="Sign out on every device"
+                  disabled={u.id === currentUserId}
+                  onClick={() => endSessions.mutate(u.id, { onSuccess: () => setDone(`${u.name} is signed out on every device.`) })}
+                >
+                  <MonitorOff className="size-4" />
+                </Button>
+                <Button
+                  size="icon"
+                  aria-label={`Lift the sign-in limits of ${u.name}`}
+                  title="Lift sign-in limits (after failed sign-ins)"
+                  onClick={() => unlock.mutate(u.id, { onSuccess: () => setDone(`${u.name} can sign in again without waiting.`) })}
+                >
+                  <LockOpen className="size-4" />
                 </Button>
                 <Button variant={u.active ? 'danger' : 'secondary'} disabled={u.id === currentUserId} onClick={() => update.mutate({ id: u.id, active: !u.active })} className="w-32">
                   {u.active ? 'Deactivate' : 'Reactivate'}
