@@ -6,6 +6,7 @@ import { pinoHttp } from 'pino-http';
 import { csrfProtection, installSessions } from './auth/session.js';
 import type { Deps } from './deps.js';
 import { registerAuthRoutes } from './features/auth/auth.routes.js';
+import { registerHealthRoutes } from './features/health/health.routes.js';
 import { registerCompareRoutes } from './features/compare/compare.routes.js';
 import { reviewLock } from './features/compare/review-lock.js';
 import { registerConsentRoutes } from './features/consents/consents.routes.js';
@@ -36,9 +37,7 @@ import { HttpError } from './lib/errors.js';
  */
 export function buildApiRouter(deps: Deps): Router {
   const r = Router();
-  r.get('/api/health', (_req, res) => {
-    res.json({ status: 'ok' });
-  });
+  registerHealthRoutes(r, deps);
   registerAuthRoutes(r, deps);
   registerUserRoutes(r, deps);
   registerPatientRoutes(r, deps);

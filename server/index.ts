@@ -14,6 +14,7 @@ import { createMailer } from './mail/outbox.js';
 import { createSmtpTransport } from './mail/transport.js';
 import { createObjectStore } from './storage/object-store.js';
 import { resumeErasures } from './features/patient-data/erasure.js';
+import { untilReady } from './storage/until-ready.js';
 
 const config = loadConfig();
 const logger = createLogger(config.logLevel);
@@ -26,12 +27,13 @@ if (config.startFakes) {
 }
 
 const storage = createObjectStore(config.s3);
-await storage.ensureBucket();
+// The server starts even when the object store cannot be reached: it keeps trying, /api/health/ready says not ready.
+const bucket = untilReady('object storage', () => storage.ensureBucket(), logger);
 
 const db = await openDatabase(path.join(config.dataDir, 'twinframe.sqlite'));
 const seeded = config.demo ? await seedDemo(db) : false;
-// An erasure a crash left half-done is completed before anything else reads the patient's records.
-await resumeErasures({ db, storage, logger }).catch((err: unknown) => logger.error({ err }, 'an unfinished erasure could not be completed yet'));
+// An erasure a crash left half-done is completed once storage answers.
+void bucket.ready.then(() => resumeErasures({ db, storage, logger })).catch((err: unknown) => logger.error({ err }, 'an unfinished erasure could not be completed yet'));
 
 const mailer = createMailer({ db, storage, transport: createSmtpTransport(config.smtp), from: config.smtp.from, logger });
 mailer.start();
@@ -52,7 +54,8 @@ const server = app.listen(config.port, () => {
     // In the background, so the app answers at once; forms are signed and portraits stored through the real code.
     const started = Date.now();
     const seconds = () => Math.round((Date.now() - started) / 1000);
-    seedDemoConsents({ db, config, logger, storage, mailer }, { stopped: () => stopping })
+    bucket.ready
+      .then(() => seedDemoConsents({ db, config, logger, storage, mailer }, { stopped: () => stopping }))
       .then((n) => n && console.log(`Demo consents: ${n} forms signed in ${seconds()} s`))
       .catch((err: unknown) => stopping || logger.error({ err }, 'demo consents could not be seeded'))
       .then(() => seedDemoPhotos({ db, storage, logger, config }, { stopped: () => stopping }))
@@ -66,6 +69,7 @@ async function shutdown() {
   if (stopping) return;
   stopping = true;
   server.close();
+  bucket.stop();
   await reminders.stop();
   await mailer.stop();
   await Promise.allSettled(services.map((s) => s.close()));

@@ -33,6 +33,8 @@ export interface ObjectStore {
   listWithSizes(prefix: string): Promise<{ key: string; size: number }[]>;
   presign(key: string, seconds: number): Promise<string>;
   ensureBucket(): Promise<void>;
+  /** Resolves when the bucket answers (readiness). */
+  ping(): Promise<void>;
 }
 
 /** A storage failure the user should hear about as "try again later", not as a bug. */
@@ -98,6 +100,10 @@ export function createObjectStore(cfg: ObjectStoreConfig): ObjectStore {
     list: async (prefix) => (await listWithSizes(prefix)).map((o) => o.key),
     listWithSizes,
     presign: (key, seconds) => getSignedUrl(client, new GetObjectCommand({ Bucket, Key: key }), { expiresIn: seconds }),
+    ping: () =>
+      wrap('bucket', async () => {
+        await client.send(new HeadBucketCommand({ Bucket }));
+      }),
     ensureBucket: () =>
       wrap('bucket', async () => {
         try {

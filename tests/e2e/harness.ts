@@ -33,11 +33,13 @@ export interface RunningApp {
   dataDir: string;
   output: () => string;
   stop(): Promise<void>;
+  /** Ends the process with SIGKILL (a crash: no shutdown code runs) and keeps its data directory. */
+  crash(): Promise<void>;
 }
 
 /** Starts the real server (`tsx server/index.ts`) on free ports with a temporary data dir and the demo clinic. */
-export async function startServer(env: Record<string, string> = {}): Promise<RunningApp> {
-  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'twinframe-e2e-'));
+export async function startServer(env: Record<string, string> = {}, opts: { dataDir?: string } = {}): Promise<RunningApp> {
+  const dataDir = opts.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'twinframe-e2e-'));
   const [port, s3, smtp] = [await freePort(), await freePort(), await freePort()];
   let log = '';
   const child: ChildProcess = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
@@ -63,6 +65,12 @@ export async function startServer(env: Record<string, string> = {}): Promise<Run
     url,
     dataDir,
     output: () => log,
+    async crash() {
+      if (child.exitCode !== null || child.signalCode) return;
+      const exited = new Promise((resolve) => child.once('exit', resolve));
+      child.kill('SIGKILL');
+      await exited;
+    },
     async stop() {
       if (child.exitCode === null) {
         child.kill('SIGTERM');

@@ -28,6 +28,7 @@ const none = (why: string): Read => ({ kind: 'none', why });
 
 const READS: Record<string, Read> = {
   'GET /api/health': none('liveness'),
+  'GET /api/health/ready': none('readiness of the database, object store and mail queue'),
   'GET /api/auth/csrf': none('a CSRF token'),
   'GET /api/auth/me': none('the signed-in staff user'),
   'GET /api/users': none('staff accounts'),

@@ -13,6 +13,7 @@ const CLINICAL: Who[] = ['admin', 'practitioner'];
 
 export const EXPECTED: Record<string, Who[]> = {
   'GET /api/health': ['public'],
+  'GET /api/health/ready': ['public'],
   'GET /api/auth/csrf': ['public'],
   'POST /api/auth/login': ['public'],
   'POST /api/auth/logout': [...STAFF, 'handover'],
