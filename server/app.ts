@@ -17,6 +17,7 @@ import { registerAccessLogRoutes } from './features/access-log/access-log.routes
 import { registerPatientDataRoutes } from './features/patient-data/patient-data.routes.js';
 import { registerShowcaseRoutes } from './features/showcase/showcase.routes.js';
 import { registerStockRoutes } from './features/stock/stock.routes.js';
+import { registerComplicationRoutes } from './features/complications/complications.routes.js';
 import { registerSettingsRoutes } from './features/settings/settings.routes.js';
 import { registerPatientRoutes } from './features/patients/patients.routes.js';
 import { registerLandmarkRoutes } from './features/landmarks/landmarks.routes.js';
@@ -50,6 +51,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerProductRoutes(r, deps);
   registerTreatmentRoutes(r, deps);
   registerStockRoutes(r, deps);
+  registerComplicationRoutes(r, deps);
   registerReferencePictureRoutes(r, deps);
   registerReminderRoutes(r, deps);
   registerClinicDayRoutes(r, deps);

@@ -3,6 +3,7 @@ import path from 'node:path';
 import { DataSource } from 'typeorm';
 import { AuditEvent } from '../entities/audit-event.js';
 import { ClinicSettings } from '../entities/clinic-settings.js';
+import { ComplicationAction, ComplicationEpisode, ComplicationFollowUp } from '../entities/complication.js';
 import { ShowcaseExport, ShowcaseRequest } from '../entities/showcase.js';
 import { ConsentEvidence } from '../entities/consent-evidence.js';
 import { ConsentRecord } from '../entities/consent-record.js';
@@ -32,14 +33,16 @@ import { Consents1764900000000 } from './migrations/1764900000000-consents.js';
 import { Treatments1765000000000 } from './migrations/1765000000000-treatments.js';
 import { ProductCatalogue1766014000000 } from './migrations/1766014000000-product-catalogue.js';
 import { Stock1766014000001 } from './migrations/1766014000001-stock.js';
+import { Complications1766014000002 } from './migrations/1766014000002-complications.js';
+import { TraceabilitySettings1766014000003 } from './migrations/1766014000003-traceability-settings.js';
 import { ConsentOncePerHandover1764900000001 } from './migrations/1764900000001-consent-once-per-handover.js';
 import { ErasureJournal1766019000000 } from './migrations/1766019000000-erasure-journal.js';
 import { Sessions1766019000001 } from './migrations/1766019000001-sessions.js';
 
-export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo, MailLog, ConsentTemplate, HandoverSession, ConsentRecord, ConsentEvidence, Product, Consultation, Treatment, TreatmentLine, TreatmentDose, Reminder, ReferencePicture, ClinicSettings, ShowcaseRequest, ShowcaseExport, StockLot, StockMovement];
+export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo, MailLog, ConsentTemplate, HandoverSession, ConsentRecord, ConsentEvidence, Product, Consultation, Treatment, TreatmentLine, TreatmentDose, Reminder, ReferencePicture, ClinicSettings, ShowcaseRequest, ShowcaseExport, StockLot, StockMovement, ComplicationEpisode, ComplicationAction, ComplicationFollowUp];
 
 /** Listed explicitly (not globbed) so the same list works under tsx, vitest and a build. */
-export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Landmarks1764800000000, Consents1764900000000, ConsentOncePerHandover1764900000001, Treatments1765000000000, Settings1765100000000, Erasure1765200000000, Showcase1765300000000, ProductCatalogue1766014000000, Stock1766014000001, ErasureJournal1766019000000, Sessions1766019000001];
+export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Landmarks1764800000000, Consents1764900000000, ConsentOncePerHandover1764900000001, Treatments1765000000000, Settings1765100000000, Erasure1765200000000, Showcase1765300000000, ProductCatalogue1766014000000, Stock1766014000001, Complications1766014000002, TraceabilitySettings1766014000003, ErasureJournal1766019000000, Sessions1766019000001];
 
 /**
  * Builds the SQLite data source. `database` is a file path, or ":memory:" in tests.

@@ -36,6 +36,22 @@ export class ClinicSettings {
   @Column('varchar', { length: 120 })
   showcaseCaption: string;
 
+  /** Where the clinic's complication protocol is and who to call: shown on the treatment screen and in episodes. */
+  @Column('varchar', { length: 500, default: '' })
+  complicationProtocol: string;
+
+  /** A neuromodulator line given by an injector who is not a prescriber needs the prescriber's record. */
+  @Column('boolean', { default: false })
+  prescriberRequired: boolean;
+
+  /** E-mail the patient a treatment card (product, lot, date) after each treatment. */
+  @Column('boolean', { default: false })
+  treatmentCardEmail: boolean;
+
+  /** Months from a neuromodulator-only treatment to its maintenance reminder (effect lasts about 3–4 months). */
+  @Column('integer', { default: 3 })
+  toxinMaintenanceMonths: number;
+
   @Column('varchar', { length: 30 })
   updatedAt: string;
 

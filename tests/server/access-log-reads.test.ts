@@ -45,6 +45,9 @@ const READS: Record<string, Read> = {
   'GET /api/stock/alerts': none('lots on the shelf'),
   'GET /api/stock/emergency-kit': none('lots on the shelf'),
   'GET /api/stock/usage': none('amounts per product and practitioner, no patient'),
+  'GET /api/patients/:id/complications': patient((f) => `/api/patients/${f.patientId}/complications`),
+  'GET /api/complications/:id': patient((f) => `/api/complications/${f.complicationId}`),
+  'GET /api/complications/:id/pdf': patient((f) => `/api/complications/${f.complicationId}/pdf`),
   'GET /api/review': none('whether this session is in review mode (an id, no record); starting review mode is logged'),
   'GET /api/handover': none("the patient's own forms, on the hand-over device the patient holds; the claim is logged"),
   'GET /api/patients': list('/api/patients?q=Auditley'),
@@ -95,6 +98,7 @@ interface Fixture {
   mailId: string;
   referencePictureId: string;
   exportFileUrl: string;
+  complicationId: string;
 }
 
 function getRoutes(router: Router): string[] {
@@ -137,6 +141,8 @@ beforeAll(async () => {
   const products = await createProducts(admin);
   const line = { productId: products.soft.id, unit: 'mL', lotNumber: 'AU-1001', expiryDate: '2099-12-31', doses: [{ zone: 'upper-body', amount: 0.3 }], techniques: ['linear-threading'], device: 'needle', gauge: 30, depth: 'submucosal' };
   expect((await prac.put(`/api/visits/${visitIds[0]}/treatment`).send({ lines: [line] })).status).toBeLessThan(300);
+  const episode = await prac.post(`/api/visits/${visitIds[0]}/complications`).send({ signs: ['swelling'] });
+  expect(episode.status).toBe(201);
   expect((await prac.put(`/api/visits/${visitIds[0]}/consultation`).send({ goals: ['more-volume'], targetRatio: '1:1.6', plan: [] })).status).toBeLessThan(300);
   // Signed photography and showcase consents (the e-mailed copies give an outbox row naming the patient).
   const forms = await demoForms(t, adminUser.id);
@@ -158,7 +164,7 @@ beforeAll(async () => {
     .post(`/api/patients/${p.id}/reference-pictures`)
     .attach('picture', await renderPortrait({ seed: 32, view: 'lips-rest', lipVolume: 0.8, shot: 0 }), { filename: 'wish.jpg', contentType: 'image/jpeg' });
   expect(picture.status).toBe(201);
-  f = { patientId: p.id, visitIds, photoIds, consentId: signed.body.consentId, handoverId, mailId: mail.id, referencePictureId: picture.body.id, exportFileUrl: exp.body.files[0].url };
+  f = { patientId: p.id, visitIds, photoIds, consentId: signed.body.consentId, handoverId, mailId: mail.id, referencePictureId: picture.body.id, exportFileUrl: exp.body.files[0].url, complicationId: episode.body.id };
 }, 240_000);
 afterAll(() => t.close());
 

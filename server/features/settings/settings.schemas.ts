@@ -28,6 +28,15 @@ export const settingsUpdateSchema = z
     retentionYears: z.number().int().min(0).max(100),
     watermarkText: printable(80),
     showcaseCaption: printable(120),
+    /** Free text, may be empty: where the protocol is kept and whom to call. Never doses. */
+    complicationProtocol: z
+      .string()
+      .trim()
+      .max(500, 'Use at most 500 characters.')
+      .refine((s) => !/[\u0000-\u0009\u000b-\u001f\u007f]/.test(s), 'Use printable characters only.'),
+    prescriberRequired: z.boolean(),
+    treatmentCardEmail: z.boolean(),
+    toxinMaintenanceMonths: z.number().int().min(2, 'At least 2 months.').max(6, 'At most 6 months: neuromodulator lasts about 3–4 months.'),
   })
   .partial()
   .strict();

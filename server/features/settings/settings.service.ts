@@ -19,6 +19,11 @@ export function defaultSettings(config: Config): Settings {
     retentionYears: 8,
     watermarkText: config.clinicName,
     showcaseCaption: 'Individual results vary.',
+    complicationProtocol: '',
+    prescriberRequired: false,
+    treatmentCardEmail: false,
+    // Neuromodulator lasts about 3–4 months (FACTS 28, common practice).
+    toxinMaintenanceMonths: 3,
     updatedAt: '',
   };
 }

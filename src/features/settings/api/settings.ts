@@ -12,6 +12,10 @@ export interface ClinicSettings {
   retentionYears: number;
   watermarkText: string;
   showcaseCaption: string;
+  complicationProtocol: string;
+  prescriberRequired: boolean;
+  treatmentCardEmail: boolean;
+  toxinMaintenanceMonths: number;
   updatedAt: string;
 }
 

@@ -1,14 +1,15 @@
 import { useEffect, useState, type FormEvent } from 'react';
 import { Button } from '../../../components/ui/button';
 import { Card } from '../../../components/ui/card';
-import { Field, Input } from '../../../components/ui/field';
+import { Field, Input, Textarea } from '../../../components/ui/field';
 import { Notice } from '../../../components/ui/notice';
 import { PageHeader, Spinner } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { useSettings, useUpdateSettings, type ClinicSettings } from '../api/settings';
 
 type Draft = Omit<ClinicSettings, 'updatedAt'>;
-const NUMERIC = ['idleMinutes', 'sessionHours', 'reviewReminderDays', 'maintenanceReminderMonths', 'retentionYears'] as const;
+const NUMERIC = ['idleMinutes', 'sessionHours', 'reviewReminderDays', 'maintenanceReminderMonths', 'retentionYears', 'toxinMaintenanceMonths'] as const;
+const BOOLEAN = ['prescriberRequired', 'treatmentCardEmail'] as const;
 
 export function SettingsPage() {
   const { data, isPending } = useSettings();
@@ -29,7 +30,11 @@ export function SettingsPage() {
 
   const submit = (e: FormEvent) => {
     e.preventDefault();
-    const body = Object.fromEntries(Object.entries(draft).map(([k, v]) => [k, (NUMERIC as readonly string[]).includes(k) ? Number(v) : v]));
+    const body = Object.fromEntries(
+      Object.entries(draft)
+        .filter(([k]) => k !== 'updatedById')
+        .map(([k, v]) => [k, (NUMERIC as readonly string[]).includes(k) ? Number(v) : (BOOLEAN as readonly string[]).includes(k) ? v === 'true' : v]),
+    );
     save.mutate(body, { onSuccess: () => setSaved(true) });
   };
 
@@ -61,12 +66,47 @@ export function SettingsPage() {
           <Field label="Maintenance reminder (months after treatment)" error={errors.maintenanceReminderMonths} hint="Lip filler typically lasts about 6–9 months.">
             {(p) => <Input {...p} type="number" min={3} max={18} {...bind('maintenanceReminderMonths')} />}
           </Field>
+          <Field label="Neuromodulator maintenance reminder (months)" error={errors.toxinMaintenanceMonths} hint="For a treatment with neuromodulator only. Its effect usually lasts about 3–4 months.">
+            {(p) => <Input {...p} type="number" min={2} max={6} {...bind('toxinMaintenanceMonths')} />}
+          </Field>
           <Field label="Watermark on showcase exports" error={errors.watermarkText}>
             {(p) => <Input {...p} {...bind('watermarkText')} />}
           </Field>
           <Field label="Caption on showcase exports" error={errors.showcaseCaption}>
             {(p) => <Input {...p} {...bind('showcaseCaption')} />}
           </Field>
+        </Card>
+        <Card className="space-y-4 p-5">
+          <Field
+            label="Complication protocol: where it is kept and whom to call"
+            error={errors.complicationProtocol}
+            hint="Shown on the treatment screen and in every complication episode, e.g. “Vascular occlusion protocol: red folder in treatment room 1, with the emergency kit. On-call prescriber: see the contact sheet.” Do not enter doses."
+          >
+            {(p) => <Textarea {...p} rows={3} maxLength={500} {...bind('complicationProtocol')} />}
+          </Field>
+          {BOOLEAN.map((k) => (
+            <label key={k} className="flex min-h-11 items-start gap-3 text-[15px]">
+              <input
+                type="checkbox"
+                className="mt-1 size-5 accent-[var(--color-accent)]"
+                checked={draft[k] === 'true'}
+                onChange={(e) => (setSaved(false), setDraft({ ...draft, [k]: String(e.target.checked) }))}
+              />
+              <span>
+                {k === 'prescriberRequired' ? (
+                  <>
+                    <span className="block font-medium">Prescriber record for neuromodulator</span>
+                    <span className="block text-sm text-ink-muted">A neuromodulator line given by an injector who is not a prescriber needs the prescriber, their registration number and the date of the face-to-face assessment. Local rules decide whether this applies.</span>
+                  </>
+                ) : (
+                  <>
+                    <span className="block font-medium">E-mail a treatment card after each treatment</span>
+                    <span className="block text-sm text-ink-muted">The patient receives the product names, lot numbers and the date, for their own records and for any other clinician they see.</span>
+                  </>
+                )}
+              </span>
+            </label>
+          ))}
         </Card>
         <Notice>Retention periods and consent rules differ by country and profession. Follow local law and your professional body's guidance; Twinframe only enforces the numbers set here.</Notice>
         <div className="flex justify-end">
