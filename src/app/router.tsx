@@ -34,6 +34,7 @@ export const router = createBrowserRouter([
       { path: 'visits/:visitId', lazy: () => import('./routes/visit').then((m) => ({ Component: m.VisitRoute })) },
       { path: 'visits/:visitId/photos', lazy: () => import('./routes/photos').then((m) => ({ Component: m.CaptureRoute })) },
       { path: 'photos/:photoId/landmarks', lazy: () => import('./routes/photo').then((m) => ({ Component: m.PhotoLandmarksRoute })) },
+      { path: 'complications/:complicationId', lazy: () => import('./routes/complication').then((m) => ({ Component: m.ComplicationRoute })) },
       { path: 'stock', lazy: () => import('./routes/stock').then((m) => ({ Component: m.StockRoute })) },
       { path: 'stock/usage', lazy: () => import('./routes/stock').then((m) => ({ Component: m.UsageRoute })) },
       { path: 'admin', lazy: () => import('./routes/admin').then((m) => ({ Component: m.AdminHome })) },

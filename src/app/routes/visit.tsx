@@ -3,6 +3,7 @@ import { VisitOpenItems } from '../../features/consents/components/open-items';
 import { VisitPhotosCard } from '../../features/photos/components/visit-photos-card';
 import { ConsultationForm } from '../../features/treatments/components/consultation-form';
 import { ScreeningReviewCard } from '../../features/treatments/components/screening-review';
+import { VisitComplications } from '../../features/complications/components/visit-complications';
 import { EmergencyKitNotice } from '../../features/stock/components/emergency-kit-notice';
 import { TreatmentEditor } from '../../features/treatments/components/treatment-editor';
 import { useVisit } from '../../features/visits/api/visits';
@@ -28,6 +29,7 @@ export function VisitRoute() {
             <>
               <EmergencyKitNotice />
               <TreatmentEditor key={`t-${visitId}`} visitId={visitId} patientId={visit.patientId} />
+              <VisitComplications visitId={visitId} patientId={visit.patientId} />
             </>
           )}
         </>
