@@ -33,6 +33,10 @@ export interface Config {
   handoverMinutes: number;
   /** Treatment record and reminder settings. */
   treatments: TreatmentSettings;
+  /** The address patients and outsiders reach the clinic's app at; printed on signed PDFs (the verify page). */
+  publicUrl: string;
+  /** PDF signing: a PKCS#12 file from an authority, or (when null) a key and certificate created at first start. */
+  signing: { p12File: string | null; passphrase: string };
   logLevel: string;
 }
 
@@ -114,6 +118,11 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
       highVolumeMl: positive(env.TWINFRAME_HIGH_VOLUME_ML, 2),
       lotWarnDays: clamp(int(env.TWINFRAME_LOT_WARN_DAYS, 30), 0, 365),
       reminderHour: clamp(int(env.TWINFRAME_REMINDER_HOUR, 9), 0, 23),
+    },
+    publicUrl: (env.TWINFRAME_PUBLIC_URL || `http://localhost:${int(env.PORT, 8080)}`).replace(/\/+$/, ''),
+    signing: {
+      p12File: env.TWINFRAME_SIGNING_P12 ? path.resolve(env.TWINFRAME_SIGNING_P12) : null,
+      passphrase: env.TWINFRAME_SIGNING_PASSPHRASE ?? 'twinframe-local-development-signing-passphrase',
     },
     logLevel: env.LOG_LEVEL ?? 'info',
   };

@@ -15,6 +15,7 @@ import { createSmtpTransport } from './mail/transport.js';
 import { createObjectStore } from './storage/object-store.js';
 import { resumeErasures } from './features/patient-data/erasure.js';
 import { untilReady } from './storage/until-ready.js';
+import { signingIdentity } from './signing/pdf-signing.js';
 
 const config = loadConfig();
 const logger = createLogger(config.logLevel);
@@ -34,6 +35,8 @@ const db = await openDatabase(path.join(config.dataDir, 'twinframe.sqlite'));
 const seeded = config.demo ? await seedDemo(db) : false;
 // An erasure a crash left half-done is completed once storage answers.
 void bucket.ready.then(() => resumeErasures({ db, storage, logger })).catch((err: unknown) => logger.error({ err }, 'an unfinished erasure could not be completed yet'));
+// Created (or read) now, so the first signature does not wait for a key to be generated.
+const identity = await signingIdentity(db, config);
 
 const mailer = createMailer({ db, storage, transport: createSmtpTransport(config.smtp), from: config.smtp.from, logger });
 mailer.start();
@@ -44,7 +47,11 @@ reminders.start();
 const app = createApp({ db, config, logger, storage, mailer }, { staticDir: path.resolve('dist') });
 const server = app.listen(config.port, () => {
   const url = `http://localhost:${config.port}`;
-  const lines = [`Twinframe is running at ${url}`, `Data: ${config.dataDir}${seeded ? ' (demo clinic seeded)' : ''}`];
+  const lines = [
+    `Twinframe is running at ${url}`,
+    `Data: ${config.dataDir}${seeded ? ' (demo clinic seeded)' : ''}`,
+    `PDF signing certificate (${identity.source}): ${identity.commonName}, SHA-256 ${identity.fingerprint}`,
+  ];
   if (config.demo) {
     lines.push('Demo sign-ins:');
     for (const u of DEMO_USERS) lines.push(`  ${u.role.padEnd(13)} ${u.email.padEnd(28)} ${u.password}`);

@@ -135,7 +135,7 @@ describe.skipIf(!browserAvailable)('consent hand-over in Chromium at 768×1024',
     await page.goto(`${app.url}/admin/outbox`);
     await page.getByText('Your signed clinical photography consent from Linden Row Aesthetics').waitFor();
     await page.getByText('Your signed clinical photography consent from Linden Row Aesthetics').click();
-    await page.getByText(/SHA-256 of the signed content: [0-9a-f]{64}/).waitFor();
+    await page.getByText(/SHA-256 of the attached PDF: [0-9a-f]{64}/).waitFor();
     await screenshot(page, 'outbox-768x1024');
     await context.close();
   });

@@ -45,17 +45,51 @@ export async function handOver(staff: Client, patientId: string, templateIds: st
   return staff;
 }
 
+const PDF_TOOL_ARGS = {
+  qpdf: (file: string) => ['--check', file],
+  pdftotext: (file: string, args: string[]) => ['-enc', 'UTF-8', ...args, file, '-'],
+  pdfimages: (file: string) => ['-list', file],
+  // Poppler's signature check (no network: the clinic's certificate has no OCSP address anyway).
+  pdfsig: (file: string) => ['-no-ocsp', file],
+};
+
 /** Writes a PDF to a temp file and runs a poppler/qpdf tool on it. */
-export function pdfTool(pdf: Buffer, tool: 'qpdf' | 'pdftotext' | 'pdfimages', args: string[] = []): string {
+export function pdfTool(pdf: Buffer, tool: keyof typeof PDF_TOOL_ARGS, args: string[] = []): string {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tf-pdf-'));
   const file = path.join(dir, 'doc.pdf');
   fs.writeFileSync(file, pdf);
   try {
-    const argv = tool === 'qpdf' ? ['--check', file] : tool === 'pdftotext' ? ['-enc', 'UTF-8', ...args, file, '-'] : ['-list', file];
-    return execFileSync(tool, argv, { encoding: 'utf8' });
+    return execFileSync(tool, PDF_TOOL_ARGS[tool](file, args), { encoding: 'utf8' });
   } finally {
     fs.rmSync(dir, { recursive: true, force: true });
   }
+}
+
+/** The signature dictionaries (/Type /Sig) of a PDF as qpdf's JSON (version 2) decodes them: text strings as "u:…". */
+export function signatureDictionaries(pdf: Buffer): Record<string, unknown>[] {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tf-pdf-'));
+  const file = path.join(dir, 'doc.pdf');
+  fs.writeFileSync(file, pdf);
+  try {
+    const json = JSON.parse(execFileSync('qpdf', ['--json=2', '--json-key=qpdf', file], { encoding: 'utf8', maxBuffer: 64 * 1024 * 1024 }));
+    const objects = Object.values(json.qpdf[1] as Record<string, { value?: Record<string, unknown> }>);
+    return objects.map((o) => o.value).filter((v): v is Record<string, unknown> => Boolean(v && typeof v === 'object' && v['/Type'] === '/Sig'));
+  } finally {
+    fs.rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+/**
+ * A copy of a PDF with one byte changed: a hex digit of the document title in the Info dictionary ("Treatment" reads
+ * "Ureatment"), so the file stays well-formed for qpdf while its bytes differ from what was signed.
+ */
+export function alterOneByte(pdf: Buffer): Buffer {
+  const out = Buffer.from(pdf);
+  const at = out.indexOf('/Title <FEFF00');
+  if (at < 0) throw new Error('no hex title in this PDF');
+  const digit = at + '/Title <FEFF00'.length;
+  out[digit] = out[digit] === 0x39 ? 0x38 : out[digit] + 1;
+  return out;
 }
 
 /** GET a binary response as a Buffer through supertest. */

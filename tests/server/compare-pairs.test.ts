@@ -15,6 +15,7 @@ import { estimatePose } from '../../server/media/pose.js';
 import type { Point } from '../../server/media/umeyama.js';
 import { VIEWS } from '../../server/media/views.js';
 import { createPatient, makeTestApp, signedIn, type Client, type TestApp } from '../helpers/app.js';
+import { pdfTool, signatureDictionaries } from '../helpers/consents.js';
 import { photoLikeJpeg, upload } from '../helpers/photos.js';
 import { createVisit } from '../helpers/treatments.js';
 
@@ -237,6 +238,12 @@ describe('comparison sheet', () => {
     expect(text).toMatch(/target[^\n]*1:1\.6/);
     expect(text).toMatch(/Results vary/);
     expect(text).toMatch(/guides for discussion, not treatment targets/);
+    // Signed by the clinic like a consent: a CMS signature (RFC 5652) over the byte range, checked by poppler's pdfsig.
+    const report = pdfTool(res.body as Buffer, 'pdfsig');
+    expect(report).toContain('Signature Validation: Signature is Valid.');
+    expect(report).toContain('Signer Certificate Common Name: Linden Row Aesthetics');
+    expect(signatureDictionaries(res.body as Buffer)[0]['/Reason']).toBe('u:Comparison sheet of Zoë Łukasiewicz-Řezníčková, Frontal, at rest');
+    expect(pdfTool(res.body as Buffer, 'qpdf')).toMatch(/No syntax or stream encoding errors found/);
     const logged = await t.db.getRepository(AuditEvent).findBy({ action: 'comparison-sheet.download', patientId: patient.id });
     expect(logged).toHaveLength(1);
     expect(JSON.parse(logged[0].details)).toMatchObject({ view: 'frontal-rest', layout: 'pair', photos: [base.photoId, follow.photoId] });
@@ -280,6 +287,7 @@ describe('comparison sheet', () => {
     const pdf = mail!.attachments.find((a) => a.contentType === 'application/pdf');
     expect(pdf).toBeDefined();
     expect(await pdfText(pdf!.content)).toContain('Zoë Łukasiewicz-Řezníčková');
+    expect(pdfTool(pdf!.content, 'pdfsig')).toContain('Signature Validation: Signature is Valid.');
     expect(await t.db.getRepository(AuditEvent).countBy({ action: 'comparison-sheet.email', patientId: patient.id })).toBe(1);
   });
 

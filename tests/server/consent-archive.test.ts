@@ -8,7 +8,7 @@ import { consentContentSha256 } from '../../server/features/consents/consents.se
 import { sha256Hex } from '../../server/features/consents/hash.js';
 import { backoffMs } from '../../server/mail/outbox.js';
 import { createPatient, makeTestApp, signedIn, type Client, type TestApp } from '../helpers/app.js';
-import { answersFor, binary, demoForms, handOver, pdfTool, signaturePng } from '../helpers/consents.js';
+import { alterOneByte, answersFor, binary, demoForms, handOver, pdfTool, signatureDictionaries, signaturePng } from '../helpers/consents.js';
 
 // Invented patient; the accented name checks that the shipped font covers it in the PDF.
 const NAME = { firstName: 'Zoë', lastName: 'Łukasiewicz-Řezníčková' };
@@ -66,8 +66,9 @@ describe('signed consent PDFs', () => {
       const text = pdfTool(pdf, 'pdftotext').replace(/\s+/g, ' ');
       expect(text).toContain(FULL_NAME);
       expect(text).toContain('Form version 1');
-      expect(text).toContain(`SHA-256 of the signed content: ${record.contentSha256}`);
+      // The footer prints what a reader can check: the record id and the public verify address.
       expect(text).toContain(`Consent record ${consentId}`);
+      expect(text).toContain('Check this PDF at http://localhost:8080/verify');
       expect(text).toContain('Linden Row Aesthetics');
       expect(text).toMatch(/Signed: \d{1,2} \w+ \d{4}, \d{2}:\d{2}:\d{2} \(Europe\/London, GMT[+-]\d{2}:\d{2}\)/);
       // Every page carries the footer.
@@ -78,6 +79,37 @@ describe('signed consent PDFs', () => {
       expect(images).toMatch(/\bimage\s+600\s+200\b/);
       expect(images).toMatch(/\bsmask\s+600\s+200\b/);
     }
+  });
+
+  it('carry the clinic\'s PDF signature, valid by poppler\'s pdfsig, with the signing time and the reason', async () => {
+    for (const kind of ['treatment', 'showcase']) {
+      const record = await t.db.getRepository(ConsentRecord).findOneByOrFail({ id: signed[kind].consentId });
+      const pdf = await t.deps.storage.get(record.pdfKey);
+      // A CMS SignedData (RFC 5652) over the file's /ByteRange, the form PAdES (ETSI EN 319 142-1) builds on;
+      // pdfsig (poppler-utils) recomputes the digest and checks the signature with the embedded certificate.
+      const report = pdfTool(pdf, 'pdfsig');
+      expect(report).toContain('Signature Validation: Signature is Valid.');
+      expect(report).toContain('Signer Certificate Common Name: Linden Row Aesthetics');
+      expect(report).toContain('Signing Hash Algorithm: SHA-256');
+      expect(report).toContain('Total document signed');
+      // Signing time is the moment of signing (pdfsig prints it in UTC, to the second).
+      const at = new Date(record.signedAt);
+      const month = at.toLocaleString('en-US', { month: 'short', timeZone: 'UTC' });
+      expect(report).toContain(`Signing Time: ${month} ${String(at.getUTCDate()).padStart(2, '0')} ${at.getUTCFullYear()} ${at.toISOString().slice(11, 19)}`);
+      // The reason, read back by qpdf as a UTF-16 text string: the accented name survives.
+      const [sig] = signatureDictionaries(pdf);
+      expect(sig['/Reason']).toBe(`u:Consent of ${FULL_NAME}, form ${signed[kind].template.title} v1`);
+      expect(sig['/ContactInfo']).toBe('u:http://localhost:8080/verify');
+    }
+  });
+
+  it('detects one changed byte: pdfsig reports a digest mismatch, qpdf still reads the file', async () => {
+    const record = await t.db.getRepository(ConsentRecord).findOneByOrFail({ id: signed.treatment.consentId });
+    const pdf = await t.deps.storage.get(record.pdfKey);
+    const tampered = alterOneByte(pdf);
+    // ETSI EN 319 142-1 / RFC 5652: the message digest over the byte range no longer matches the signed attribute.
+    expect(pdfTool(tampered, 'pdfsig')).toContain('Signature Validation: Digest Mismatch.');
+    expect(pdfTool(tampered, 'qpdf')).toMatch(/No syntax or stream encoding errors found/);
   });
 
   it('records the answers, channels and crop, and the answers that need review', async () => {
@@ -113,9 +145,7 @@ describe('signed consent PDFs', () => {
     expect(ok.body.status).toBe('valid');
     const record = await t.db.getRepository(ConsentRecord).findOneByOrFail({ id });
     const pdf = await t.deps.storage.get(record.pdfKey);
-    const tampered = Buffer.from(pdf);
-    const at = tampered.indexOf('Form version');
-    tampered[at + 5] = tampered[at + 5] ^ 0x01;
+    const tampered = alterOneByte(pdf);
     await t.deps.storage.put(record.pdfKey, tampered, 'application/pdf');
     const bad = await practitioner.get(`/api/consents/${id}/verify`);
     expect(bad.body.status).toBe('altered');
@@ -134,7 +164,13 @@ describe('signed consent PDFs', () => {
       expect(mail, kind).toBeDefined();
       expect(mail!.attachments).toHaveLength(1);
       expect(mail!.attachments[0].contentType).toBe('application/pdf');
-      expect(sha256Hex(mail!.attachments[0].content)).toBe(record.pdfSha256);
+      // FIPS 180-4 SHA-256 of the attachment as mailparser decoded it = the value the e-mail states = the database's.
+      const attachment = mail!.attachments[0].content;
+      const stated = /SHA-256 of the attached PDF: ([0-9a-f]{64})/.exec(mail!.text ?? '')?.[1];
+      expect(sha256Hex(attachment)).toBe(stated);
+      expect(stated).toBe(record.pdfSha256);
+      expect(mail!.text).toContain('check the PDF at http://localhost:8080/verify');
+      expect(pdfTool(attachment, 'pdfsig')).toContain('Signature Validation: Signature is Valid.');
     }
     const list = await practitioner.get(`/api/patients/${patient.id}/consents`);
     expect(list.body).toHaveLength(4);

@@ -83,8 +83,8 @@ const mm2 = (v: number | null | undefined) => (v === null || v === undefined ? '
 const signed = (v: number, d: number, unit: string) => `${v > 0 ? '+' : v < 0 ? '−' : '±'}${Math.abs(v).toFixed(d)}${unit}`;
 const pct = (p: number | null) => (p === null ? '' : ` (${p > 0 ? '+' : p < 0 ? '−' : '±'}${Math.abs(p).toFixed(0)} %)`);
 
-/** Renders the sheet; the photos are drawn on the neutral surround with no coloured frame. */
-export async function renderComparisonSheet(input: SheetInput): Promise<Uint8Array> {
+/** Lays out the sheet (photos on the neutral surround, no coloured frame); unsaved, for `signPdf` to save and sign. */
+export async function renderComparisonSheet(input: SheetInput): Promise<PDFDocument> {
   const doc = await PDFDocument.create();
   doc.registerFontkit(fontkit);
   const bytes = loadFonts();
@@ -241,5 +241,5 @@ export async function renderComparisonSheet(input: SheetInput): Promise<Uint8Arr
     const footer = `Prepared for ${name}'s own record by ${input.clinicName} on ${sheetDate(input.generatedAt, input.timeZone)}. Page ${i + 1} of ${pages.length}.`;
     pg.drawText(footer, { x: M, y: M - 16, size: 7.5, font: regular, color: MUTED });
   });
-  return doc.save();
+  return doc;
 }

@@ -7,6 +7,7 @@ import { nowIso } from '../../lib/time.js';
 import type { ComparisonSheetInput } from './compare.schemas.js';
 import { comparePair, loadViewPhotos } from './comparison.js';
 import { renderComparisonSheet, type SheetPhoto } from './sheet-pdf.js';
+import { signingIdentity, signPdf } from '../../signing/pdf-signing.js';
 
 /** Long edge of the photos placed on the sheet: sharp at A4 width, small enough to e-mail. */
 const SHEET_PHOTO_EDGE = 1100;
@@ -49,7 +50,7 @@ export async function buildComparisonSheet(deps: Deps, patientId: string, input:
     ? pair.reasons
     : ordered.filter((p) => p.alignmentState !== 'aligned').map((p) => `The photo of ${visits.get(p.visitId)!.startsAt.slice(0, 10)} is not aligned; it is shown as taken.`);
   const generatedAt = nowIso();
-  const pdf = await renderComparisonSheet({
+  const doc = await renderComparisonSheet({
     clinicName: deps.config.clinicName,
     timeZone: deps.config.clinicTimeZone,
     patient,
@@ -61,8 +62,14 @@ export async function buildComparisonSheet(deps: Deps, patientId: string, input:
     notComparable,
     generatedAt,
   });
+  const pdf = await signPdf(doc, await signingIdentity(deps.db, deps.config), {
+    reason: `Comparison sheet of ${patient.firstName} ${patient.lastName}, ${view.label}`,
+    signingTime: new Date(generatedAt),
+    contactInfo: deps.config.clinicName,
+    location: deps.config.clinicName,
+  });
   return {
-    pdf: Buffer.from(pdf),
+    pdf,
     fileName: `comparison-${view.key}-${generatedAt.slice(0, 10)}.pdf`,
     patient: { id: patient.id, firstName: patient.firstName, lastName: patient.lastName, email: patient.email },
     viewKey: view.key,

@@ -23,7 +23,9 @@ export function signedMail(p: {
   signedAt: string;
   timeZone: string;
   recordId: string;
-  contentSha256: string;
+  /** SHA-256 of the attached PDF, exactly the bytes sent. */
+  pdfSha256: string;
+  verifyUrl: string;
 }) {
   const withdrawable = p.kind === 'photography' || p.kind === 'showcase';
   const text = [
@@ -37,8 +39,11 @@ export function signedMail(p: {
       : []),
     'Please keep this e-mail for your records. If anything in the form is not what you agreed, contact us.',
     '',
+    'The PDF carries the clinic\'s digital signature: your PDF reader can show it, and any change to the file breaks it.',
+    `You, or anyone you show it to, can check the PDF at ${p.verifyUrl}`,
+    '',
     `Record: ${p.recordId}`,
-    `SHA-256 of the signed content: ${p.contentSha256}`,
+    `SHA-256 of the attached PDF: ${p.pdfSha256}`,
     '',
     p.clinicName,
   ].join('\n');

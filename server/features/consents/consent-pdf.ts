@@ -48,7 +48,8 @@ export interface ConsentPdfInput {
   startedBy: string;
   signedIp: string | null;
   signedUserAgent: string | null;
-  contentSha256: string;
+  /** The public page where a reader checks this PDF (printed in the footer). */
+  verifyUrl: string;
 }
 
 /** "9 December 2026, 14:32:05 (Europe/London, GMT+00:00)": local time with its zone and UTC offset. */
@@ -242,8 +243,11 @@ function answerText(q: TemplateQuestion, a: string | undefined): string {
   return a;
 }
 
-/** Renders the signed consent as a PDF: form text, answers, channels, signature, typed name, time and a hashed footer. */
-export async function renderConsentPdf(input: ConsentPdfInput): Promise<Buffer> {
+/**
+ * Lays out the signed consent: form text, answers, channels, signature, typed name, time, and a footer with what a
+ * reader can check (the record id and the verify address). Returns the document unsaved: `signPdf` saves and signs it.
+ */
+export async function renderConsentPdf(input: ConsentPdfInput): Promise<PDFDocument> {
   const doc = await PDFDocument.create();
   doc.registerFontkit(fontkit);
   const bytes = loadFonts();
@@ -350,7 +354,7 @@ export async function renderConsentPdf(input: ConsentPdfInput): Promise<Buffer> 
     const y1 = 44;
     page.drawLine({ start: { x: M.left, y: y1 + 12 }, end: { x: A4.width - M.right, y: y1 + 12 }, thickness: 0.5, color: rgb(0.8, 0.78, 0.75) });
     page.drawText(`${input.clinicName} · Consent record ${input.recordId} · Page ${i + 1} of ${pages.length}`, { x: M.left, y: y1, size: 7.5, font: fonts.regular, color: MUTED });
-    page.drawText(`SHA-256 of the signed content: ${input.contentSha256}`, { x: M.left, y: y1 - 11, size: 7.5, font: fonts.regular, color: MUTED });
+    page.drawText(`Digitally signed by the clinic. Check this PDF at ${input.verifyUrl}`, { x: M.left, y: y1 - 11, size: 7.5, font: fonts.regular, color: MUTED });
   });
-  return Buffer.from(await doc.save({ useObjectStreams: false }));
+  return doc;
 }

@@ -21,10 +21,11 @@ import type { signFormSchema } from './handover.schemas.js';
 import { checkSignature, nameMatches } from './signature.js';
 import type { z } from 'zod';
 import { getSettings } from '../settings/settings.service.js';
+import { signingIdentity, signPdf, verifyPageUrl } from '../../signing/pdf-signing.js';
 
 type SignInput = z.output<typeof signFormSchema>;
 
-/** The signed content whose SHA-256 is printed in the PDF footer: only fields fixed in the record. */
+/** The signed content, independent of how the PDF is laid out: its SHA-256 is kept in the record and its evidence. */
 export function consentContent(r: ConsentRecord) {
   return {
     id: r.id,
@@ -153,7 +154,8 @@ export async function signForm(deps: Deps, req: Request, h: HandoverSession, tem
     withdrawalDate: null,
   });
   record.contentSha256 = consentContentSha256(record);
-  const pdf = await renderConsentPdf({
+  const verifyUrl = verifyPageUrl(config);
+  const doc = await renderConsentPdf({
     recordId: id,
     clinicName: clinic.clinicName,
     template: { title: template.title, version: template.version, sha256: template.sha256, body: template.body, questions, channels: offered, kind: template.kind },
@@ -170,7 +172,13 @@ export async function signForm(deps: Deps, req: Request, h: HandoverSession, tem
     startedBy: startedBy ? `${startedBy.name} (${startedBy.role})` : 'clinic staff',
     signedIp: record.signedIp,
     signedUserAgent: record.signedUserAgent,
-    contentSha256: record.contentSha256,
+    verifyUrl,
+  });
+  const pdf = await signPdf(doc, await signingIdentity(db, config), {
+    reason: `Consent of ${patient.firstName} ${patient.lastName}, form ${template.title} v${template.version}`,
+    signingTime: new Date(signedAt),
+    contactInfo: verifyUrl,
+    location: clinic.clinicName,
   });
   record.pdfSha256 = sha256Hex(pdf);
 
@@ -182,7 +190,7 @@ export async function signForm(deps: Deps, req: Request, h: HandoverSession, tem
       const mail = patient.email
         ? await queueMail(tx, {
             to: patient.email,
-            ...signedMail({ clinicName: clinic.clinicName, firstName: patient.firstName, title: template.title, kind: template.kind, version: template.version, signedAt, timeZone: clinic.timeZone, recordId: id, contentSha256: record.contentSha256 }),
+            ...signedMail({ clinicName: clinic.clinicName, firstName: patient.firstName, title: template.title, kind: template.kind, version: template.version, signedAt, timeZone: clinic.timeZone, recordId: id, pdfSha256: record.pdfSha256, verifyUrl }),
             attachments: [{ key: pdfKey, filename: consentFileName(template.kind, template.version, signedAt), contentType: 'application/pdf' }],
             relatedType: 'consent',
             relatedId: id,

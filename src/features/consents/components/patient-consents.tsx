@@ -124,7 +124,9 @@ function ConsentRow({ c, onWithdraw }: { c: Consent; onWithdraw: () => void }) {
         )}
         {verification.error && <span className="text-sm text-danger">{verification.error.message}</span>}
       </div>
-      {verification.data && <p className="mt-2 break-all font-mono text-[11px] text-ink-faint">PDF SHA-256 {verification.data.checks.pdf.actual}</p>}
+      <p className="mt-2 break-all font-mono text-[11px] text-ink-faint" title="The SHA-256 of the exact PDF stored and e-mailed; the patient's e-mail states the same value.">
+        SHA-256 of the signed PDF {c.pdfSha256}
+      </p>
     </Card>
   );
 }
