@@ -36,4 +36,14 @@ export class ConsentEvidence {
   /** Small JSON object. */
   @Column('text', { default: '{}' })
   details: string;
+
+  /** Place in the tamper-evident chain, with the previous row's chain hash and this row's content hash; set on insert (features/integrity/chain.ts). */
+  @Column('integer', { nullable: true })
+  chainSeq: number;
+
+  @Column('varchar', { length: 64, nullable: true })
+  prevHash: string;
+
+  @Column('varchar', { length: 64, nullable: true })
+  rowHash: string;
 }

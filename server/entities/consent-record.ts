@@ -102,4 +102,14 @@ export class ConsentRecord {
   /** The day the patient asked to withdraw (YYYY-MM-DD), which may be before it was recorded. */
   @Column('varchar', { length: 10, nullable: true })
   withdrawalDate: string | null;
+
+  /** Place in the tamper-evident chain, with the previous row's chain hash and this row's content hash; set on insert (features/integrity/chain.ts). */
+  @Column('integer', { nullable: true })
+  chainSeq: number;
+
+  @Column('varchar', { length: 64, nullable: true })
+  prevHash: string;
+
+  @Column('varchar', { length: 64, nullable: true })
+  rowHash: string;
 }

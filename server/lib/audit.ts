@@ -1,6 +1,7 @@
 import type { Request } from 'express';
 import { MoreThan, type DataSource, type EntityManager } from 'typeorm';
 import { AuditEvent } from '../entities/audit-event.js';
+import { inTransaction } from '../features/integrity/chain.js';
 import { newId, nowIso } from './time.js';
 
 export interface AuditInput {
@@ -14,11 +15,14 @@ export interface AuditInput {
   actorRole?: string;
 }
 
-/** Appends one access-log row. Pass a transaction's manager to log inside it. */
+/**
+ * Appends one access-log row to its chain. Pass a transaction's manager to log inside it (as its last write: the
+ * access chain's head stays locked until that transaction ends); with the data source it is a transaction of its own.
+ */
 export async function audit(db: DataSource | EntityManager, req: Request | null, input: AuditInput): Promise<void> {
   const user = req?.user;
   const handoverId = (req?.session as { handoverId?: string } | undefined)?.handoverId;
-  await db.getRepository(AuditEvent).insert({
+  await inTransaction(db, (tx) => tx.getRepository(AuditEvent).insert({
     id: newId(),
     at: nowIso(),
     actorId: input.actorId !== undefined ? input.actorId : (user?.id ?? null),
@@ -30,7 +34,7 @@ export async function audit(db: DataSource | EntityManager, req: Request | null,
     ip: req?.ip ?? null,
     userAgent: req?.get('user-agent')?.slice(0, 300) ?? null,
     details: JSON.stringify(input.details ?? {}),
-  });
+  }));
 }
 
 /**

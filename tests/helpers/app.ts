@@ -39,10 +39,13 @@ export interface TestApp {
   close(): Promise<void>;
 }
 
-/** A real app on a fresh in-memory SQLite database and a fresh bucket in its own S3 fake. */
-export async function makeTestApp(env: Record<string, string> = {}, extra: Partial<Deps> = {}): Promise<TestApp> {
+/**
+ * A real app on a fresh in-memory SQLite database and a fresh bucket in its own S3 fake. With `sqliteFile` the
+ * database is the file the server itself would use in `dataDir` (for tests that open it from outside the app).
+ */
+export async function makeTestApp(env: Record<string, string> = {}, extra: Partial<Deps> = {}, opts: { sqliteFile?: boolean } = {}): Promise<TestApp> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'twinframe-test-'));
-  const db = await openDatabase(':memory:');
+  const db = await openDatabase(opts.sqliteFile ? path.join(dataDir, 'twinframe.sqlite') : ':memory:');
   const objectsDir = path.join(dataDir, 'objects');
   let s3 = await startS3Fake(objectsDir, 0, 'twinframe-test');
   const mailDir = path.join(dataDir, 'mail');

@@ -78,7 +78,7 @@ export async function insertScreening(db: DataSource, patientId: string, yes: st
     withdrawalReason: null,
     withdrawalDate: null,
   });
-  await db.getRepository(ConsentRecord).insert(row);
+  await db.transaction((tx) => tx.getRepository(ConsentRecord).insert(row));
   return row;
 }
 

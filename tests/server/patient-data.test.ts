@@ -5,6 +5,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { AuditEvent } from '../../server/entities/audit-event.js';
 import { Patient } from '../../server/entities/patient.js';
+import { signingIdentity } from '../../server/signing/pdf-signing.js';
 import { makeTestApp, signedIn, type Client, type TestApp } from '../helpers/app.js';
 import { answersFor, binary, demoForms, handOver, signaturePng } from '../helpers/consents.js';
 import { bucketKeys, patientWithVisit, photoLikeJpeg, upload } from '../helpers/photos.js';
@@ -24,6 +25,8 @@ beforeAll(async () => {
   const p = await signedIn(t, 'practitioner');
   practitioner = p.client;
   practitionerId = p.user.id;
+  // The first signature on a fresh database creates the clinic's signing key: done here, not inside a timed test.
+  await signingIdentity(t.db, t.config);
 });
 afterAll(() => t.close());
 

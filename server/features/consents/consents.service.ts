@@ -3,6 +3,7 @@ import { In, type DataSource, type EntityManager } from 'typeorm';
 import type { Deps } from '../../deps.js';
 import { ConsentEvidence } from '../../entities/consent-evidence.js';
 import { ConsentRecord } from '../../entities/consent-record.js';
+import type { ChainFields } from '../../entities/record-chain.js';
 import { ConsentTemplate, type ConsentKind, type ShowcaseChannel, type TemplateQuestion } from '../../entities/consent-template.js';
 import { HandoverSession } from '../../entities/handover-session.js';
 import { MailLog } from '../../entities/mail-log.js';
@@ -219,7 +220,7 @@ export async function signForm(deps: Deps, req: Request, h: HandoverSession, tem
 
 async function writeSigningEvidence(tx: EntityManager, r: ConsentRecord, h: HandoverSession, startedBy: User | null, mailId: string | null) {
   const repo = tx.getRepository(ConsentEvidence);
-  const rows: Omit<ConsentEvidence, 'id'>[] = [
+  const rows: Omit<ConsentEvidence, 'id' | ChainFields>[] = [
     {
       consentId: r.id,
       at: h.createdAt,

@@ -3,6 +3,7 @@ import type { Deps } from '../../deps.js';
 import { audit } from '../../lib/audit.js';
 import { newId, nowIso } from '../../lib/time.js';
 import { patientPrefix } from '../../storage/keys.js';
+import { keepTombstone } from '../integrity/chain.js';
 import { collectPatientRecords, primaryKey } from './patient-records.js';
 
 type ErasureDeps = Pick<Deps, 'db' | 'storage' | 'logger'>;
@@ -37,6 +38,8 @@ async function completeErasure({ db, storage }: ErasureDeps, row: JournalRow, re
     for (const t of [...tables].reverse()) {
       const primary = primaryKey(db, t.table);
       for (const r of t.rows) {
+        // A chained row leaves its hashes behind, so the chain still verifies without the patient's data.
+        await keepTombstone(tx, t.table, r, row.id);
         await tx.query(`DELETE FROM "${t.table}" WHERE "${primary}" = ?`, [r[primary]]);
         n += 1;
       }

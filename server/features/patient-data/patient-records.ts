@@ -1,7 +1,7 @@
 import type { DataSource, EntityManager } from 'typeorm';
 
 /** Tables never exported or erased with a patient: staff, sessions, clinic set-up, and the access log (kept by law). */
-const NOT_PATIENT_DATA = new Set(['user', 'session', 'login_failure', 'clinic_settings', 'shot_list', 'shot_list_view', 'consent_template', 'product', 'patient_erasure']);
+const NOT_PATIENT_DATA = new Set(['user', 'session', 'login_failure', 'clinic_settings', 'shot_list', 'shot_list_view', 'consent_template', 'product', 'patient_erasure', 'chain_head', 'chain_tombstone', 'chain_digest', 'signing_identity', 'rate_limit']);
 
 export interface TableRows {
   table: string;
