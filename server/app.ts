@@ -29,6 +29,7 @@ import { registerReferencePictureRoutes } from './features/treatments/reference-
 import { registerTreatmentRoutes } from './features/treatments/treatments.routes.js';
 import { registerUserRoutes } from './features/users/users.routes.js';
 import { registerVisitRoutes } from './features/visits/visits.routes.js';
+import { registerVerifyRoutes } from './features/verify/verify.routes.js';
 import { errorHandler } from './lib/error-handler.js';
 import { HttpError } from './lib/errors.js';
 
@@ -61,6 +62,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerShowcaseRoutes(r, deps);
   registerHandoverRoutes(r, deps);
   registerConsentRoutes(r, deps);
+  registerVerifyRoutes(r, deps);
   return r;
 }
 

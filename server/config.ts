@@ -37,6 +37,8 @@ export interface Config {
   publicUrl: string;
   /** PDF signing: a PKCS#12 file from an authority, or (when null) a key and certificate created at first start. */
   signing: { p12File: string | null; passphrase: string };
+  /** The public verify page: checks allowed per address in each window. */
+  verify: { limit: number; windowMinutes: number };
   logLevel: string;
 }
 
@@ -124,6 +126,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
       p12File: env.TWINFRAME_SIGNING_P12 ? path.resolve(env.TWINFRAME_SIGNING_P12) : null,
       passphrase: env.TWINFRAME_SIGNING_PASSPHRASE ?? 'twinframe-local-development-signing-passphrase',
     },
+    verify: { limit: clamp(int(env.TWINFRAME_VERIFY_LIMIT, 20), 1, 10_000), windowMinutes: 15 },
     logLevel: env.LOG_LEVEL ?? 'info',
   };
 }

@@ -183,3 +183,21 @@ export async function chainHeads(db: DataSource): Promise<Record<ChainName, { se
   }
   return out;
 }
+
+/**
+ * Whether one chained row still holds its place: its content gives its stored hash, and the next row (or the head,
+ * for the last) is chained to it. A row rewritten together with its stored hash fails the second test. Used where
+ * a whole walk would be too slow (the public verify page).
+ */
+export async function rowIntact(db: DataSource, name: ChainName, row: Record<string, unknown>): Promise<boolean> {
+  const chain = CHAINS[name];
+  const seq = Number(row.chainSeq);
+  if (!Number.isInteger(seq) || seq < 1 || rowHashOf(chain, seq, row) !== row.rowHash) return false;
+  const link = linkHash(String(row.prevHash), String(row.rowHash));
+  const next =
+    (await db.getRepository<Record<string, unknown>>(chain.entity).findOneBy({ chainSeq: seq + 1 })) ??
+    (await db.getRepository(ChainTombstone).findOneBy({ chain: name, seq: seq + 1 }));
+  if (next) return next.prevHash === link;
+  const head = await db.getRepository(ChainHead).findOneBy({ chain: name });
+  return Boolean(head && Number(head.seq) === seq && head.hash === link);
+}
