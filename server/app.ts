@@ -30,6 +30,7 @@ import { registerTreatmentRoutes } from './features/treatments/treatments.routes
 import { registerUserRoutes } from './features/users/users.routes.js';
 import { registerVisitRoutes } from './features/visits/visits.routes.js';
 import { registerVerifyRoutes } from './features/verify/verify.routes.js';
+import { registerIntegrityRoutes } from './features/integrity/integrity.routes.js';
 import { errorHandler } from './lib/error-handler.js';
 import { HttpError } from './lib/errors.js';
 
@@ -63,6 +64,7 @@ export function buildApiRouter(deps: Deps): Router {
   registerHandoverRoutes(r, deps);
   registerConsentRoutes(r, deps);
   registerVerifyRoutes(r, deps);
+  registerIntegrityRoutes(r, deps);
   return r;
 }
 

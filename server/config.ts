@@ -39,6 +39,8 @@ export interface Config {
   signing: { p12File: string | null; passphrase: string };
   /** The public verify page: checks allowed per address in each window. */
   verify: { limit: number; windowMinutes: number };
+  /** Hour of the day (clinic time) from which the daily e-mail of the record chain heads goes to the admins. */
+  digestHour: number;
   logLevel: string;
 }
 
@@ -127,6 +129,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
       passphrase: env.TWINFRAME_SIGNING_PASSPHRASE ?? 'twinframe-local-development-signing-passphrase',
     },
     verify: { limit: clamp(int(env.TWINFRAME_VERIFY_LIMIT, 20), 1, 10_000), windowMinutes: 15 },
+    digestHour: clamp(int(env.TWINFRAME_DIGEST_HOUR, 7), 0, 23),
     logLevel: env.LOG_LEVEL ?? 'info',
   };
 }

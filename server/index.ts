@@ -10,6 +10,7 @@ import { seedDemoPhotos } from './db/seed-photos.js';
 import { startS3Fake, startSmtpFake, type RunningService } from './dev-services.js';
 import { createLogger } from './logger.js';
 import { createReminderScheduler } from './features/reminders/scheduler.js';
+import { createDigestScheduler } from './features/integrity/digest.js';
 import { createMailer } from './mail/outbox.js';
 import { createSmtpTransport } from './mail/transport.js';
 import { createObjectStore } from './storage/object-store.js';
@@ -43,6 +44,8 @@ mailer.start();
 // Started here, not in createApp, so tests drive reminders themselves with runOnce().
 const reminders = createReminderScheduler({ db, config, logger, mailer });
 reminders.start();
+const digests = createDigestScheduler({ db, config, logger, mailer });
+digests.start();
 
 const app = createApp({ db, config, logger, storage, mailer }, { staticDir: path.resolve('dist') });
 const server = app.listen(config.port, () => {
@@ -78,6 +81,7 @@ async function shutdown() {
   server.close();
   bucket.stop();
   await reminders.stop();
+  await digests.stop();
   await mailer.stop();
   await Promise.allSettled(services.map((s) => s.close()));
   await db.destroy();

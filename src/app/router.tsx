@@ -8,6 +8,8 @@ import { AppShell } from './shell';
  */
 export const router = createBrowserRouter([
   { path: '/sign-in', element: <SignInPage /> },
+  // Public, no sign-in: anyone holding a consent PDF checks it here (the address printed in every PDF's footer).
+  { path: '/verify', lazy: () => import('../features/verify/components/verify-page').then((m) => ({ Component: m.VerifyPage })) },
   // Outside the shell: a device in hand-over shows only the patient's forms.
   { path: '/handover', lazy: () => import('../features/consents/components/handover-flow').then((m) => ({ Component: m.HandoverFlowPage })) },
   // Outside the shell: review mode shows one patient's comparison full screen, with no way to other records.

@@ -58,7 +58,7 @@ export interface RequestOptions {
   query?: Record<string, string | number | boolean | undefined | null>;
 }
 
-/** JSON request to the API with the CSRF header on state-changing calls (refetched once if stale). */
+/** Request to the API (JSON, or multipart for a FormData body) with the CSRF header on state-changing calls (refetched once if stale). */
 export async function api<T>(path: string, opts: RequestOptions = {}): Promise<T> {
   const method = opts.method ?? 'GET';
   const qs = opts.query
@@ -67,12 +67,14 @@ export async function api<T>(path: string, opts: RequestOptions = {}): Promise<T
   const url = qs ? `${path}?${qs}` : path;
   const send = async (retry: boolean): Promise<T> => {
     const headers: Record<string, string> = { Accept: 'application/json' };
-    if (opts.body !== undefined) headers['Content-Type'] = 'application/json';
+    // A FormData body is sent as multipart (the browser sets its boundary); anything else as JSON.
+    const multipart = opts.body instanceof FormData;
+    if (opts.body !== undefined && !multipart) headers['Content-Type'] = 'application/json';
     if (method !== 'GET') headers['X-CSRF-Token'] = await getCsrfToken();
     const res = await fetch(url, {
       method,
       headers,
-      body: opts.body === undefined ? undefined : JSON.stringify(opts.body),
+      body: opts.body === undefined ? undefined : multipart ? (opts.body as FormData) : JSON.stringify(opts.body),
       signal: opts.signal,
       credentials: 'same-origin',
     });

@@ -48,6 +48,7 @@ const READS: Record<string, Read> = {
   'GET /api/patients/:id/complications': patient((f) => `/api/patients/${f.patientId}/complications`),
   'GET /api/complications/:id': patient((f) => `/api/complications/${f.complicationId}`),
   'GET /api/complications/:id/pdf': patient((f) => `/api/complications/${f.complicationId}/pdf`),
+  'GET /api/integrity': none('chain heads and digests: hashes and counts, no patient data'),
   'GET /api/verify/certificate': none("the clinic's public signing certificate"),
   'GET /api/review': none('whether this session is in review mode (an id, no record); starting review mode is logged'),
   'GET /api/handover': none("the patient's own forms, on the hand-over device the patient holds; the claim is logged"),

@@ -78,6 +78,8 @@ export const EXPECTED: Record<string, Who[]> = {
   'POST /api/verify/pdf': ['public'],
   'POST /api/verify/hash': ['public'],
   'GET /api/verify/certificate': ['public'],
+  'GET /api/integrity': ['admin'],
+  'POST /api/integrity/check': ['admin'],
   'POST /api/visits/:visitId/photos': CLINICAL,
   'GET /api/visits/:visitId/photos': CLINICAL,
   'GET /api/patients/:id/photos': CLINICAL,

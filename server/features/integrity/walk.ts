@@ -1,4 +1,4 @@
-import { IsNull, MoreThan, type DataSource } from 'typeorm';
+import { IsNull, MoreThan, type DataSource, type EntityManager } from 'typeorm';
 import { ConsentEvidence } from '../../entities/consent-evidence.js';
 import { ConsentRecord } from '../../entities/consent-record.js';
 import { ChainDigest, ChainHead, ChainTombstone } from '../../entities/record-chain.js';
@@ -174,7 +174,7 @@ export async function walkChains(db: DataSource): Promise<ChainReport[]> {
 }
 
 /** The current heads, as shown to admins and e-mailed daily. */
-export async function chainHeads(db: DataSource): Promise<Record<ChainName, { seq: number; hash: string; updatedAt: string }>> {
+export async function chainHeads(db: DataSource | EntityManager): Promise<Record<ChainName, { seq: number; hash: string; updatedAt: string }>> {
   const rows = await db.getRepository(ChainHead).find();
   const out = {} as Record<ChainName, { seq: number; hash: string; updatedAt: string }>;
   for (const name of CHAIN_ORDER) {

@@ -1,5 +1,5 @@
 import { useForm } from 'react-hook-form';
-import { useLocation, useNavigate } from 'react-router-dom';
+import { Link, useLocation, useNavigate } from 'react-router-dom';
 import type { LoginInput } from '../../../../server/features/auth/auth.schemas';
 import { Button } from '../../../components/ui/button';
 import { Field, Input } from '../../../components/ui/field';
@@ -46,6 +46,11 @@ export function SignInPage() {
           </Button>
         </form>
         <p className="mt-6 text-center text-xs text-ink-faint">For clinic staff. Patients sign their forms in hand-over mode on a clinic tablet.</p>
+        <p className="mt-2 text-center text-sm">
+          <Link to="/verify" className="text-ink-muted underline underline-offset-4 hover:text-ink">
+            Check a consent document
+          </Link>
+        </p>
       </div>
     </main>
   );
