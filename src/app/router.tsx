@@ -42,6 +42,7 @@ export const router = createBrowserRouter([
       { path: 'admin', lazy: () => import('./routes/admin').then((m) => ({ Component: m.AdminHome })) },
       { path: 'admin/users', lazy: () => import('./routes/admin').then((m) => ({ Component: m.UsersRoute })) },
       { path: 'admin/access-log', lazy: () => import('./routes/admin').then((m) => ({ Component: m.AccessLogRoute })) },
+      { path: 'admin/integrity', lazy: () => import('./routes/admin').then((m) => ({ Component: m.IntegrityRoute })) },
       { path: 'admin/settings', lazy: () => import('./routes/admin').then((m) => ({ Component: m.SettingsRoute })) },
       { path: 'admin/showcase', lazy: () => import('./routes/admin').then((m) => ({ Component: m.ShowcaseRoute })) },
       { path: 'admin/products', lazy: () => import('./routes/admin').then((m) => ({ Component: m.ProductsRoute })) },

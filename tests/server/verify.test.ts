@@ -17,6 +17,7 @@ import { alterOneByte, answersFor, demoForms, handOver, pdfTool, signaturePng } 
 
 let t: TestApp;
 let anonymous: Client;
+let staff: Client;
 const ids: Record<'photography' | 'showcase', string> = { photography: '', showcase: '' };
 let titles: Record<'photography' | 'showcase', string>;
 
@@ -27,6 +28,7 @@ const checks = () => t.db.getRepository(AuditEvent).findBy({ action: 'verify.che
 beforeAll(async () => {
   t = await makeTestApp({ TWINFRAME_VERIFY_LIMIT: '40' });
   const admin = await signedIn(t, 'admin');
+  staff = admin.client;
   const forms = await demoForms(t, admin.user.id);
   titles = { photography: forms.photography.title, showcase: forms.showcase.title };
   const patient = await createPatient(t.db, { firstName: 'Oona', lastName: 'Verity', email: 'oona@mail.example' });
@@ -163,6 +165,9 @@ describe('the public verify page, as an anonymous caller', () => {
       expect(res.body.result).toBe('not-a-record');
       const entry = (await checks()).at(-1)!;
       expect(JSON.parse(entry.details)).toMatchObject({ result: 'not-a-record', integrity: 'broken' });
+      // The staff check of the stored copy says the same: the file still hashes right, the record does not hold.
+      const internal = await staff.get(`/api/consents/${record.id}/verify`);
+      expect(internal.body).toMatchObject({ status: 'altered', checks: { pdf: { ok: true }, chain: { ok: false } } });
     } finally {
       await t.db.query(`UPDATE "consent_record" SET "signerName" = ?, "rowHash" = ? WHERE "id" = ?`, [record.signerName, record.rowHash, record.id]);
       await t.db.query(trigger);

@@ -22,6 +22,7 @@ import type { signFormSchema } from './handover.schemas.js';
 import { checkSignature, nameMatches } from './signature.js';
 import type { z } from 'zod';
 import { getSettings } from '../settings/settings.service.js';
+import { rowIntact } from '../integrity/walk.js';
 import { signingIdentity, signPdf, verifyPageUrl } from '../../signing/pdf-signing.js';
 
 type SignInput = z.output<typeof signFormSchema>;
@@ -325,7 +326,10 @@ export async function consentViews(db: DataSource | EntityManager, req: Request,
   });
 }
 
-/** Re-reads the stored PDF and signature and re-hashes them and the recorded content. */
+/**
+ * Re-reads the stored PDF and signature and re-hashes them and the recorded content, and checks the record still
+ * holds its place in the consent chain (a row rewritten with its hashes would otherwise compare equal to itself).
+ */
 export async function verifyConsent(deps: Deps, r: ConsentRecord) {
   const [pdf, sig] = await Promise.all([deps.storage.get(r.pdfKey), deps.storage.get(r.signatureKey)]);
   const pdfActual = sha256Hex(pdf);
@@ -335,7 +339,8 @@ export async function verifyConsent(deps: Deps, r: ConsentRecord) {
     pdf: { expected: r.pdfSha256, actual: pdfActual, ok: pdfActual === r.pdfSha256 },
     signature: { expected: r.signatureSha256, actual: sigActual, ok: sigActual === r.signatureSha256 },
     content: { expected: r.contentSha256, actual: contentActual, ok: contentActual === r.contentSha256 },
+    chain: { ok: await rowIntact(deps.db, 'consent', r as unknown as Record<string, unknown>) },
   };
-  const valid = checks.pdf.ok && checks.signature.ok && checks.content.ok;
+  const valid = checks.pdf.ok && checks.signature.ok && checks.content.ok && checks.chain.ok;
   return { consentId: r.id, status: valid ? ('valid' as const) : ('altered' as const), checkedAt: nowIso(), checks };
 }

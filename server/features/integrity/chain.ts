@@ -23,6 +23,9 @@ import { ConsentRecord } from '../../entities/consent-record.js';
 import { ChainTombstone } from '../../entities/record-chain.js';
 import { nowIso } from '../../lib/time.js';
 import { canonicalJson } from '../consents/hash.js';
+import type { ChainName } from './integrity.schemas.js';
+
+export type { ChainName };
 
 type ColumnKind = 'text' | 'int' | 'bool';
 
@@ -42,7 +45,6 @@ export interface ChainDefinition {
   unhashed: string[];
 }
 
-export type ChainName = 'consent' | 'evidence' | 'access';
 
 export const GENESIS = '0'.repeat(64);
 const CHAIN_COLUMNS = ['chainSeq', 'prevHash', 'rowHash'];

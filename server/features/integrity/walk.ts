@@ -2,28 +2,10 @@ import { IsNull, MoreThan, type DataSource, type EntityManager } from 'typeorm';
 import { ConsentEvidence } from '../../entities/consent-evidence.js';
 import { ConsentRecord } from '../../entities/consent-record.js';
 import { ChainDigest, ChainHead, ChainTombstone } from '../../entities/record-chain.js';
-import { CHAIN_ORDER, CHAINS, GENESIS, linkHash, rowHashOf, type ChainDefinition, type ChainName } from './chain.js';
+import { CHAIN_ORDER, CHAINS, GENESIS, linkHash, rowHashOf, type ChainDefinition } from './chain.js';
+import type { ChainBreak, ChainName, ChainReport } from './integrity.schemas.js';
 
-/** The first thing found wrong in a chain, naming the row. */
-export interface ChainBreak {
-  table: string;
-  seq: number | null;
-  rowId: string | null;
-  message: string;
-}
-
-export interface ChainReport {
-  chain: ChainName;
-  label: string;
-  table: string;
-  ok: boolean;
-  /** Rows walked, and of those the erased rows kept as tombstones. */
-  rows: number;
-  tombstones: number;
-  head: { seq: number; hash: string; updatedAt: string } | null;
-  digestsChecked: number;
-  problem: ChainBreak | null;
-}
+export type { ChainBreak, ChainReport };
 
 const BATCH = 1000;
 

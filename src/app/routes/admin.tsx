@@ -1,8 +1,9 @@
 import { Link } from 'react-router-dom';
-import { Camera, ChevronRight, FileSignature, Mail, Megaphone, Package, ScrollText, Settings, UserCog, type LucideIcon } from 'lucide-react';
+import { Camera, ChevronRight, FileSignature, ShieldCheck, Mail, Megaphone, Package, ScrollText, Settings, UserCog, type LucideIcon } from 'lucide-react';
 import { Card } from '../../components/ui/card';
 import { PageHeader } from '../../components/ui/page';
 import { AccessLogPage } from '../../features/access-log/components/access-log-page';
+import { IntegrityPage } from '../../features/integrity/components/integrity-page';
 import { ConsentFormsPage } from '../../features/consents/components/consent-forms-page';
 import { OutboxPage } from '../../features/consents/components/outbox-page';
 import { SettingsPage } from '../../features/settings/components/settings-page';
@@ -16,6 +17,7 @@ export const ADMIN_SECTIONS: { to: string; label: string; description: string; i
   { to: '/admin/consent-forms', label: 'Consent forms', description: 'Treatment, photography and showcase consents, the health questionnaire; versions, publish, retire.', icon: FileSignature },
   { to: '/admin/outbox', label: 'Outbox', description: 'E-mails sent to patients: signed copies and confirmations, pending and failed sends.', icon: Mail },
   { to: '/admin/users', label: 'Users', description: 'Staff sign-ins and roles, deactivation, password resets.', icon: UserCog },
+  { to: '/admin/integrity', label: 'Record integrity', description: 'Tamper-evident chains of consents, their evidence and the access log: heads, daily digests, check now.', icon: ShieldCheck },
   { to: '/admin/access-log', label: 'Access log', description: 'Who saw or changed what, and when. Filter and export as CSV.', icon: ScrollText },
   { to: '/admin/settings', label: 'Clinic settings', description: 'Clinic name and time zone, automatic sign-out, reminders, retention, watermark.', icon: Settings },
   { to: '/admin/shot-lists', label: 'Shot lists', description: 'The standard views photographed at each visit, their order and positioning hints.', icon: Camera },
@@ -59,6 +61,12 @@ export function UsersRoute() {
 export const AccessLogRoute = () => (
   <RequireRole roles={['admin']}>
     <AccessLogPage />
+  </RequireRole>
+);
+
+export const IntegrityRoute = () => (
+  <RequireRole roles={['admin']}>
+    <IntegrityPage />
   </RequireRole>
 );
 

@@ -119,7 +119,7 @@ function ConsentRow({ c, onWithdraw }: { c: Consent; onWithdraw: () => void }) {
         {verification.data && (
           <span role="status" className={cn('flex items-center gap-1 text-sm font-medium', verification.data.status === 'valid' ? 'text-done' : 'text-danger')}>
             {verification.data.status === 'valid' ? <ShieldCheck className="size-4" aria-hidden /> : <ShieldAlert className="size-4" aria-hidden />}
-            {verification.data.status === 'valid' ? 'Verified: unchanged since signing' : 'Altered: the stored file does not match its recorded hash'}
+            {verification.data.status === 'valid' ? 'Verified: unchanged since signing' : 'Altered: the stored file or its record no longer matches what was signed'}
           </span>
         )}
         {verification.error && <span className="text-sm text-danger">{verification.error.message}</span>}
