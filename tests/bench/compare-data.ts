@@ -38,6 +38,12 @@ export class ApiSession {
     if (!res.ok) throw new Error(`${method} ${path}: ${res.status} ${await res.text()}`);
     return (res.status === 204 ? undefined : await res.json()) as T;
   }
+  /** The raw answer, for streamed downloads. */
+  async raw(method: string, path: string, signal?: AbortSignal): Promise<Response> {
+    const res = await fetch(`${this.baseUrl}${path}`, { method, headers: { cookie: this.cookie, 'x-csrf-token': this.csrf }, signal });
+    if (!res.ok) throw new Error(`${method} ${path}: ${res.status} ${await res.text()}`);
+    return res;
+  }
   async upload(visitId: string, view: string, jpeg: Buffer): Promise<{ id: string }> {
     const form = new FormData();
     form.set('view', view);
