@@ -9,6 +9,7 @@ import { seedDemoConsents } from './db/seed-consents.js';
 import { seedDemoPhotos } from './db/seed-photos.js';
 import { startS3Fake, startSmtpFake, type RunningService } from './dev-services.js';
 import { createLogger } from './logger.js';
+import { closeReadPool } from './db/read-pool.js';
 import { createReminderScheduler } from './features/reminders/scheduler.js';
 import { createDigestScheduler } from './features/integrity/digest.js';
 import { createMailer } from './mail/outbox.js';
@@ -84,6 +85,7 @@ async function shutdown() {
   await digests.stop();
   await mailer.stop();
   await Promise.allSettled(services.map((s) => s.close()));
+  await closeReadPool(db);
   await db.destroy();
   process.exit(0);
 }

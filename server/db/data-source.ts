@@ -30,6 +30,7 @@ import { ChainDigest, ChainHead, ChainTombstone } from '../entities/record-chain
 import { ChainSubscriber } from '../features/integrity/chain.js';
 import { RecordChains1766012000001 } from './migrations/1766012000001-record-chains.js';
 import { SigningIdentity1766012000000 } from './migrations/1766012000000-signing-identity.js';
+import { AccessLogKeyset1766020000001 } from './migrations/1766020000001-access-log-keyset.js';
 import { PatientSearch1766020000000 } from './migrations/1766020000000-patient-search.js';
 import { Showcase1765300000000 } from './migrations/1765300000000-showcase.js';
 import { Erasure1765200000000 } from './migrations/1765200000000-erasure.js';
@@ -50,7 +51,7 @@ import { Sessions1766019000001 } from './migrations/1766019000001-sessions.js';
 export const ENTITIES = [User, Patient, Visit, AuditEvent, Session, LoginFailure, ShotList, ShotListView, Photo, MailLog, ConsentTemplate, HandoverSession, ConsentRecord, ConsentEvidence, Product, Consultation, Treatment, TreatmentLine, TreatmentDose, Reminder, ReferencePicture, ClinicSettings, ShowcaseRequest, ShowcaseExport, StockLot, StockMovement, ComplicationEpisode, ComplicationAction, ComplicationFollowUp, SigningIdentityRow, ChainHead, ChainTombstone, ChainDigest, RateLimitHit];
 
 /** Listed explicitly (not globbed) so the same list works under tsx, vitest and a build. */
-export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Landmarks1764800000000, Consents1764900000000, ConsentOncePerHandover1764900000001, Treatments1765000000000, Settings1765100000000, Erasure1765200000000, Showcase1765300000000, SigningIdentity1766012000000, RecordChains1766012000001, RateLimit1766012000002, ProductCatalogue1766014000000, Stock1766014000001, Complications1766014000002, TraceabilitySettings1766014000003, ErasureJournal1766019000000, Sessions1766019000001, PatientSearch1766020000000];
+export const MIGRATIONS = [Foundation1764600000000, Photos1764700000000, Landmarks1764800000000, Consents1764900000000, ConsentOncePerHandover1764900000001, Treatments1765000000000, Settings1765100000000, Erasure1765200000000, Showcase1765300000000, SigningIdentity1766012000000, RecordChains1766012000001, RateLimit1766012000002, ProductCatalogue1766014000000, Stock1766014000001, Complications1766014000002, TraceabilitySettings1766014000003, ErasureJournal1766019000000, Sessions1766019000001, PatientSearch1766020000000, AccessLogKeyset1766020000001];
 
 /**
  * Builds the SQLite data source. `database` is a file path, or ":memory:" in tests.

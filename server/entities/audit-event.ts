@@ -2,7 +2,8 @@ import { Column, Entity, Index, PrimaryColumn } from 'typeorm';
 
 /** One line of the access log. Append-only: database triggers refuse UPDATE and DELETE. */
 @Entity('audit_event')
-@Index(['at'])
+@Index(['at', 'id'])
+@Index(['action', 'at'])
 @Index(['patientId', 'at'])
 @Index(['actorId', 'at'])
 export class AuditEvent {

@@ -42,10 +42,13 @@ export interface RunningServer {
   peakRssMb(): number;
   /** Current resident memory (VmRSS), in MB. */
   rssMb(): number;
+  /** Why the server stopped, with the end of its error output, when it has stopped on its own; else null. */
+  died(): string | null;
   stop(): Promise<void>;
 }
 
 function procStatusMb(pid: number, field: 'VmHWM' | 'VmRSS'): number {
+  if (!fs.existsSync(`/proc/${pid}/status`)) return NaN;
   const m = new RegExp(`${field}:\\s+(\\d+) kB`).exec(fs.readFileSync(`/proc/${pid}/status`, 'utf8'));
   return m ? Number(m[1]) / 1024 : NaN;
 }
@@ -72,9 +75,12 @@ export async function startServer(env: Record<string, string>): Promise<RunningS
   // Keep reading (and dropping) the request log so the pipe never fills.
   child.stdout.resume();
   const pid = child.pid!;
+  let exit: string | null = null;
+  child.once('exit', (code, signal) => (exit = `exit code ${code}, signal ${signal}`));
   return {
     url,
     pid,
+    died: () => (exit ? `${exit}\n${err}` : null),
     peakRssMb: () => procStatusMb(pid, 'VmHWM'),
     rssMb: () => procStatusMb(pid, 'VmRSS'),
     stop: () =>

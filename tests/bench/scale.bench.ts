@@ -47,13 +47,17 @@ async function timed(f: () => Promise<unknown>): Promise<number> {
   return performance.now() - t0;
 }
 
-/** Patient lookups one after the other, every LOOKUP_EVERY_MS, until `done` settles. */
+/**
+ * Patient lookups one after the other, every LOOKUP_EVERY_MS, until `done` settles. A lookup whose kept-alive
+ * connection the server dropped is sent again on a new one, and its time counts from the first try (what a user waits).
+ */
 async function lookupsWhile(api: ApiSession, ids: string[], done: Promise<unknown>): Promise<number[]> {
   let finished = false;
   void done.finally(() => (finished = true)).catch(() => undefined);
   const out: number[] = [];
   for (let i = 0; !finished; i++) {
-    out.push(await timed(() => api.call('GET', `/api/patients/${ids[i % ids.length]}`)));
+    const path = `/api/patients/${ids[i % ids.length]}`;
+    out.push(await timed(() => api.call('GET', path).catch(() => api.call('GET', path))));
     await sleep(LOOKUP_EVERY_MS);
   }
   return out;
@@ -160,10 +164,31 @@ async function main() {
         spent.set(name, spent.get(name)! + ms);
       }
     }
+    const anchor = percentile(times.get('patient-read')!, 95);
+    const targets: Record<string, { ms: number; ratio?: number }> = {
+      'patient-search': { ms: 30, ratio: 3 },
+      'dob-search': { ms: 30, ratio: 3 },
+      'clinic-day': { ms: 30, ratio: 3 },
+      'access-log': { ms: 30, ratio: 3 },
+    };
+    console.log(
+      `scale bench: ${SIZE.patients.toLocaleString('en')} patients, ${SIZE.photos.toLocaleString('en')} photo rows, ${SIZE.auditRows.toLocaleString('en')} access-log rows; ` +
+        `SQLite, real server in its own process; N=${N}; ${machineLine()}`,
+    );
+    const line = (name: string, xs: number[], t?: { ms: number; ratio?: number }) => {
+      const p95 = percentile(xs, 95);
+      const ratio = p95 / anchor;
+      const verdict = t ? `; target ≤ ${t.ms} ms${t.ratio ? ` and ≤ ${t.ratio}× anchor` : ''}: ${mark(p95 <= t.ms && (!t.ratio || ratio <= t.ratio))}` : '';
+      const anchorText = name === 'patient-read' ? 'anchor: primary-key patient read' : `${ratio.toFixed(2)}× anchor ${fmt(anchor)} ms`;
+      console.log(`${`${name} p95 ${fmt(p95)} ms`.padEnd(36)}(median ${fmt(median(xs))}, max ${fmt(Math.max(...xs))}, n=${xs.length}; ${anchorText}${verdict})`);
+    };
+    for (const [name] of figures) line(name, times.get(name)!, targets[name]);
+
     const x10: number[] = [];
     for (let round = 0; round < Math.max(5, Math.round(N / 5)); round++) {
       x10.push(...(await Promise.all(Array.from({ length: 10 }, () => timed(() => prac.call('GET', `/api/patients?q=${encodeURIComponent(searchTerm())}`))))));
     }
+    line('patient-search-x10', x10, { ms: 100 });
 
     // 8 camera photos uploaded at once, to 8 visits; lookups run until every one is stored and aligned.
     const visitIds: string[] = [];
@@ -182,9 +207,16 @@ async function main() {
         await sleep(250);
       }
     });
-    const duringUploads = await lookupsWhile(prac, ids, allAligned);
+    const duringUploads = await lookupsWhile(prac, ids, allAligned).catch((err: unknown) => {
+      throw new Error(`lookups during the uploads failed (${String(err)}); server: ${server?.died() ?? 'still running'}`);
+    });
     const up = await allAligned;
     const uploadPeak = server.peakRssMb();
+    line('lookup-during-8-uploads', duringUploads, { ms: 50 });
+    console.log(
+      `${''.padEnd(36)}(8 photos 6000×4000 stored in ${(up.stored / 1000).toFixed(1)} s, all aligned in ${(up.aligned / 1000).toFixed(1)} s: ${up.states.join(' ')}; ` +
+        `server RSS ${rssBefore.toFixed(0)} MB before, peak ${uploadPeak.toFixed(0)} MB)`,
+    );
 
     // The unfiltered access log as CSV, read as fast as the client can; lookups meanwhile.
     const csvAbort = new AbortController();
@@ -212,31 +244,6 @@ async function main() {
     const csvSeconds = (performance.now() - csvStart) / 1000;
     const rowsPerSecond = csvRows / csvSeconds;
 
-    const anchor = percentile(times.get('patient-read')!, 95);
-    const targets: Record<string, { ms: number; ratio?: number }> = {
-      'patient-search': { ms: 30, ratio: 3 },
-      'dob-search': { ms: 30, ratio: 3 },
-      'clinic-day': { ms: 30, ratio: 3 },
-      'access-log': { ms: 30, ratio: 3 },
-    };
-    console.log(
-      `scale bench: ${SIZE.patients.toLocaleString('en')} patients, ${SIZE.photos.toLocaleString('en')} photo rows, ${SIZE.auditRows.toLocaleString('en')} access-log rows; ` +
-        `SQLite, real server in its own process; N=${N}; ${machineLine()}`,
-    );
-    const line = (name: string, xs: number[], t?: { ms: number; ratio?: number }) => {
-      const p95 = percentile(xs, 95);
-      const ratio = p95 / anchor;
-      const verdict = t ? `; target ≤ ${t.ms} ms${t.ratio ? ` and ≤ ${t.ratio}× anchor` : ''}: ${mark(p95 <= t.ms && (!t.ratio || ratio <= t.ratio))}` : '';
-      const anchorText = name === 'patient-read' ? 'anchor: primary-key patient read' : `${ratio.toFixed(2)}× anchor ${fmt(anchor)} ms`;
-      console.log(`${`${name} p95 ${fmt(p95)} ms`.padEnd(36)}(median ${fmt(median(xs))}, max ${fmt(Math.max(...xs))}, n=${xs.length}; ${anchorText}${verdict})`);
-    };
-    for (const [name] of figures) line(name, times.get(name)!, targets[name]);
-    line('patient-search-x10', x10, { ms: 100 });
-    line('lookup-during-8-uploads', duringUploads, { ms: 50 });
-    console.log(
-      `${''.padEnd(36)}(8 photos 6000×4000 stored in ${(up.stored / 1000).toFixed(1)} s, all aligned in ${(up.aligned / 1000).toFixed(1)} s: ${up.states.join(' ')}; ` +
-        `server RSS ${rssBefore.toFixed(0)} MB before, peak ${uploadPeak.toFixed(0)} MB)`,
-    );
     line('lookup-during-csv-export', duringCsv, { ms: 50 });
     console.log(
       `${`csv-export rows/s ${Math.round(rowsPerSecond).toLocaleString('en')}`.padEnd(36)}(${csvRows.toLocaleString('en')} rows in ${csvSeconds.toFixed(1)} s${csvStopped ? `, STOPPED after ${CSV_SECONDS} s` : ''}; target ≥ 50,000: ${mark(rowsPerSecond >= 50_000 && !csvStopped)})`,

@@ -8,6 +8,7 @@ import { createApp } from '../../server/app.js';
 import { hashPassword } from '../../server/auth/passwords.js';
 import { loadConfig, type Config } from '../../server/config.js';
 import { openDatabase } from '../../server/db/data-source.js';
+import { closeReadPool } from '../../server/db/read-pool.js';
 import type { Deps } from '../../server/deps.js';
 import { Patient } from '../../server/entities/patient.js';
 import { User, type Role } from '../../server/entities/user.js';
@@ -41,7 +42,8 @@ export interface TestApp {
 
 /**
  * A real app on a fresh in-memory SQLite database and a fresh bucket in its own S3 fake. With `sqliteFile` the
- * database is the file the server itself would use in `dataDir` (for tests that open it from outside the app).
+ * database is the file the server itself would use in `dataDir` (for tests that open it from outside the app, or
+ * that need the read pool's worker threads).
  */
 export async function makeTestApp(env: Record<string, string> = {}, extra: Partial<Deps> = {}, opts: { sqliteFile?: boolean } = {}): Promise<TestApp> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'twinframe-test-'));
@@ -90,6 +92,7 @@ export async function makeTestApp(env: Record<string, string> = {}, extra: Parti
     async close() {
       await deps.mailer.stop();
       await smtp?.close();
+      await closeReadPool(db);
       await db.destroy();
       await t.s3.close();
       fs.rmSync(dataDir, { recursive: true, force: true });
@@ -138,17 +141,25 @@ export async function createPatient(db: DataSource, overrides: Partial<Patient> 
 export class Client {
   readonly agent: ReturnType<typeof request.agent>;
   csrf = '';
+  /** The session cookie as a `Cookie` header, for requests made without the agent (e.g. a raw socket). */
+  cookie = '';
   constructor(app: TestApp['app']) {
     this.agent = request.agent(app);
   }
+  private keepCookie(res: { headers: Record<string, unknown> }) {
+    const set = (res.headers['set-cookie'] ?? []) as string[];
+    for (const c of set) if (c.startsWith('tf.sid=')) this.cookie = c.split(';')[0];
+  }
   async refreshCsrf(): Promise<string> {
     const res = await this.agent.get('/api/auth/csrf');
+    this.keepCookie(res);
     this.csrf = res.body.token;
     return this.csrf;
   }
   async login(email: string, password = TEST_PASSWORD) {
     await this.refreshCsrf();
     const res = await this.agent.post('/api/auth/login').set('X-CSRF-Token', this.csrf).send({ email, password });
+    this.keepCookie(res);
     await this.refreshCsrf();
     return res;
   }

@@ -48,10 +48,16 @@ describe('access log', () => {
     expect(byPatient.body.total).toBe(3);
     expect(byPatient.body.items).toHaveLength(2);
     expect(byPatient.body.items[0]).toMatchObject({ action: 'patient.view', patientName: 'Philippa Loggins', actorName: 'Test practitioner' });
-    const page2 = await admin.get('/api/access-log').query({ patientId: a.id, action: 'patient.view', pageSize: 2, page: 2 });
+    expect(byPatient.body).toMatchObject({ totalIsAtLeast: false, newer: null });
+    const page2 = await admin.get('/api/access-log').query({ patientId: a.id, action: 'patient.view', pageSize: 2, before: byPatient.body.older });
     expect(page2.body.items).toHaveLength(1);
+    expect(page2.body.older).toBeNull();
     const ids = new Set([...byPatient.body.items, ...page2.body.items].map((i: { id: string }) => i.id));
     expect(ids.size).toBe(3);
+    // Back up from the second page gives the first page again, in the same order.
+    const back = await admin.get('/api/access-log').query({ patientId: a.id, action: 'patient.view', pageSize: 2, after: page2.body.newer });
+    expect(back.body.items.map((i: { id: string }) => i.id)).toEqual(byPatient.body.items.map((i: { id: string }) => i.id));
+    expect(back.body.newer).toBeNull();
 
     const yesterday = new Date(Date.now() - 2 * 86_400_000).toISOString().slice(0, 10);
     expect((await admin.get('/api/access-log').query({ patientId: a.id, to: yesterday })).body.total).toBe(0);
@@ -74,6 +80,8 @@ describe('access log', () => {
     expect((await admin.get('/api/access-log').query({ from: '2026-05-02', to: '2026-05-01' })).status).toBe(400);
     expect((await admin.get('/api/access-log').query({ userId: 'nope' })).status).toBe(400);
     expect((await admin.get('/api/access-log').query({ action: "x' OR 1=1" })).status).toBe(400);
+    expect((await admin.get('/api/access-log').query({ before: '2026-01-01' })).status).toBe(400);
+    expect((await admin.get('/api/access-log').query({ page: 2 })).status).toBe(400);
   });
 
   it('exports CSV (RFC 4180 quoting, formula-safe) and logs the export itself', async () => {

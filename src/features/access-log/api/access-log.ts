@@ -19,7 +19,18 @@ export interface AccessEvent {
   details: Record<string, unknown>;
 }
 
-export type AccessLogFilters = Omit<AccessLogQuery, 'page' | 'pageSize'> & { page: number; pageSize: number };
+/** One page of the log, newest first; `newer`/`older` are the positions of the neighbouring pages (null at an end). */
+export interface AccessLogPage {
+  items: AccessEvent[];
+  /** Exact up to the server's cap; with `totalIsAtLeast` the log holds more than `total` entries. */
+  total: number;
+  totalIsAtLeast: boolean;
+  newer: string | null;
+  older: string | null;
+  pageSize: number;
+}
+
+export type AccessLogFilters = Omit<AccessLogQuery, 'pageSize'> & { pageSize: number };
 
 export const accessLogKeys = {
   all: ['access-log'] as const,
@@ -28,12 +39,11 @@ export const accessLogKeys = {
   staff: () => [...accessLogKeys.all, 'staff'] as const,
 };
 
-export const getAccessLog = (f: AccessLogFilters, signal?: AbortSignal) =>
-  api<{ items: AccessEvent[]; total: number; page: number; pageSize: number }>('/api/access-log', { query: { ...f }, signal });
+export const getAccessLog = (f: AccessLogFilters, signal?: AbortSignal) => api<AccessLogPage>('/api/access-log', { query: { ...f }, signal });
 
-/** The CSV export link for the same filters (every page). */
+/** The CSV export link for the same filters (the whole log they match, not one page). */
 export function accessLogCsvUrl(f: AccessLogFilters): string {
-  const q = new URLSearchParams(Object.entries({ ...f, page: undefined, pageSize: undefined }).filter(([, v]) => v !== undefined && v !== '') as [string, string][]);
+  const q = new URLSearchParams(Object.entries({ ...f, before: undefined, after: undefined, pageSize: undefined }).filter(([, v]) => v !== undefined && v !== '') as [string, string][]);
   return `/api/access-log.csv${q.size ? `?${q}` : ''}`;
 }
 

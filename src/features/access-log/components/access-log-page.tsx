@@ -1,5 +1,5 @@
 import { useSearchParams } from 'react-router-dom';
-import { ChevronLeft, ChevronRight, Download, X } from 'lucide-react';
+import { ChevronLeft, ChevronRight, ChevronsLeft, Download, X } from 'lucide-react';
 import { Badge } from '../../../components/ui/badge';
 import { Button, buttonVariants } from '../../../components/ui/button';
 import { Card } from '../../../components/ui/card';
@@ -32,19 +32,22 @@ export function AccessLogPage() {
     action: params.get('action') || undefined,
     from: params.get('from') || undefined,
     to: params.get('to') || undefined,
-    page: Number(params.get('page') ?? 1) || 1,
+    before: params.get('before') || undefined,
+    after: params.get('after') || undefined,
     pageSize: PAGE_SIZE,
   };
+  /** Sets one filter (back to the newest entries) or one page position (`before`/`after`, the other one cleared). */
   const set = (k: string, v: string | undefined) => {
     const next = new URLSearchParams(params);
+    next.delete('before');
+    next.delete('after');
     if (v) next.set(k, v);
     else next.delete(k);
-    if (k !== 'page') next.delete('page');
     setParams(next, { replace: true });
   };
   const { data, isPending, error, isFetching } = useAccessLog(filters);
   const staff = useStaffNames();
-  const pages = data ? Math.max(1, Math.ceil(data.total / data.pageSize)) : 1;
+  const onFirstPage = !filters.before && !filters.after;
 
   return (
     <>
@@ -138,13 +141,18 @@ export function AccessLogPage() {
             </table>
           </div>
           <nav className="flex items-center justify-between border-t border-line px-4 py-2" aria-label="Pages">
-            <Button variant="ghost" size="sm" disabled={filters.page <= 1} onClick={() => set('page', String(filters.page - 1))}>
-              <ChevronLeft className="size-4" /> Newer
-            </Button>
+            <div className="flex gap-1">
+              <Button variant="ghost" size="sm" disabled={onFirstPage} onClick={() => set('before', undefined)}>
+                <ChevronsLeft className="size-4" /> Newest
+              </Button>
+              <Button variant="ghost" size="sm" disabled={!data.newer} onClick={() => set('after', data.newer ?? undefined)}>
+                <ChevronLeft className="size-4" /> Newer
+              </Button>
+            </div>
             <span className="text-sm text-ink-muted">
-              {data.total} {data.total === 1 ? 'entry' : 'entries'} · page {filters.page} of {pages}
+              {data.totalIsAtLeast ? `More than ${data.total.toLocaleString('en-GB')} entries` : `${data.total.toLocaleString('en-GB')} ${data.total === 1 ? 'entry' : 'entries'}`} · newest first
             </span>
-            <Button variant="ghost" size="sm" disabled={filters.page >= pages} onClick={() => set('page', String(filters.page + 1))}>
+            <Button variant="ghost" size="sm" disabled={!data.older} onClick={() => set('before', data.older ?? undefined)}>
               Older <ChevronRight className="size-4" />
             </Button>
           </nav>
