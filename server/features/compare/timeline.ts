@@ -4,8 +4,22 @@ import { ShotListView } from '../../entities/shot-list.js';
 import { Treatment } from '../../entities/treatment.js';
 import { Visit } from '../../entities/visit.js';
 import { DEFAULT_SHOT_LIST_ID } from '../../entities/shot-list.js';
-import { photoView, type PhotoDto } from '../photos/photos.routes.js';
+import { photoView } from '../photos/photos.routes.js';
 import { treatmentTotals } from '../treatments/totals.js';
+
+/** The sizes a screen draws, in WebP (the one format every supported browser shows). */
+const SCREEN_VARIANTS = ['thumb', 'display', 'aligned'];
+
+/**
+ * A photo as the timeline, compare and review screens draw it: its thumbnail, display and aligned images and whether
+ * it is aligned yet. The rest of a photo (hashes, uploader, capture details) is on `GET /api/photos/:id`.
+ */
+export interface TimelinePhoto {
+  id: string;
+  viewKey: string;
+  alignmentState: Photo['alignmentState'];
+  variants: { variant: string; format: 'webp'; width: number; height: number; url: string }[];
+}
 
 export interface TimelineVisit {
   id: string;
@@ -16,7 +30,7 @@ export interface TimelineVisit {
   /** What was injected, as totals only (no notes, lots or techniques); null when no treatment was recorded. */
   treatment: { fillerMl: number; toxinU: number; products: string[] } | null;
   /** The current photo of each view taken at this visit, by view key; a missing key is a gap. */
-  photos: Record<string, PhotoDto>;
+  photos: Record<string, TimelinePhoto>;
 }
 
 export interface Timeline {
@@ -27,10 +41,11 @@ export interface Timeline {
   visits: TimelineVisit[];
 }
 
-/** A photo as the screens get it: the master is for the archive and export, so only the smaller variants are listed. */
-function screenPhoto(p: Photo, visitStartsAt: string): PhotoDto {
-  const dto = photoView(p, { visitStartsAt });
-  return { ...dto, variants: dto.variants.filter((v) => v.variant !== 'master') };
+function screenPhoto(p: Photo): TimelinePhoto {
+  const variants = photoView(p)
+    .variants.filter((v) => v.format === 'webp' && SCREEN_VARIANTS.includes(v.variant))
+    .map((v) => ({ variant: v.variant, format: 'webp' as const, width: v.width, height: v.height, url: v.url }));
+  return { id: p.id, viewKey: p.viewKey, alignmentState: p.alignmentState, variants };
 }
 
 /**
@@ -40,7 +55,8 @@ function screenPhoto(p: Photo, visitStartsAt: string): PhotoDto {
 export async function loadTimeline(db: DataSource, patientId: string, now = new Date()): Promise<Timeline> {
   const [visits, photos, treatments] = await Promise.all([
     db.getRepository(Visit).find({ where: { patientId }, relations: { practitioner: true }, order: { startsAt: 'ASC' } }),
-    db.getRepository(Photo).find({ where: { patientId, state: 'captured' } }),
+    // Only the columns the screens draw from: the landmark, quality and measurement columns are most of a row.
+    db.getRepository(Photo).find({ where: { patientId, state: 'captured' }, select: { id: true, visitId: true, viewKey: true, alignmentState: true, variants: true } }),
     db.getRepository(Treatment).find({ where: { patientId }, relations: { lines: { doses: true } } }),
   ]);
   const byVisit = new Map<string, Photo[]>();
@@ -74,7 +90,7 @@ export async function loadTimeline(db: DataSource, patientId: string, now = new 
         status: v.status,
         practitionerName: v.practitioner?.name ?? null,
         treatment: t && totals ? { fillerMl: totals.fillerMl, toxinU: totals.toxinU, products: [...new Set((t.lines ?? []).map((l) => l.productName))] } : null,
-        photos: Object.fromEntries((byVisit.get(v.id) ?? []).map((p) => [p.viewKey, screenPhoto(p, v.startsAt)])),
+        photos: Object.fromEntries((byVisit.get(v.id) ?? []).map((p) => [p.viewKey, screenPhoto(p)])),
       };
     }),
   };

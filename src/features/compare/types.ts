@@ -1,10 +1,9 @@
-import type { PhotoDto } from '../../../server/features/photos/photos.routes';
-import type { Timeline, TimelineVisit } from '../../../server/features/compare/timeline';
+import type { Timeline, TimelinePhoto, TimelineVisit } from '../../../server/features/compare/timeline';
 import type { CompareMode, ComparisonSheetInput, ReviewSetup, StartReviewInput } from '../../../server/features/compare/compare.schemas';
 import type { ComparedPhoto, OverlayPoints, PairComparison, Warning } from '../../../server/features/compare/comparison';
 import type { LipMeasurements } from '../../../server/media/measurements';
 
-export type { ComparedPhoto, CompareMode, ComparisonSheetInput, LipMeasurements, OverlayPoints, PairComparison, PhotoDto, ReviewSetup, StartReviewInput, Timeline, TimelineVisit, Warning };
+export type { ComparedPhoto, CompareMode, ComparisonSheetInput, LipMeasurements, OverlayPoints, PairComparison, ReviewSetup, StartReviewInput, Timeline, TimelinePhoto, TimelineVisit, Warning };
 
 /** The per-visit measurements of the patient (GET /api/patients/:id/measurements), as far as the trends chart reads them. */
 export interface MeasurementSeries {

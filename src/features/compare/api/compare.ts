@@ -1,6 +1,6 @@
 import { queryOptions, useMutation, useQuery, useQueryClient, type QueryClient } from '@tanstack/react-query';
 import { api, ApiError, getCsrfToken } from '../../../lib/api-client';
-import type { MeasurementSeries, PairComparison, PhotoDto, ReviewState, StartReviewInput, Timeline } from '../types';
+import type { MeasurementSeries, PairComparison, TimelinePhoto, ReviewState, StartReviewInput, Timeline } from '../types';
 
 export const compareKeys = {
   all: ['compare'] as const,
@@ -67,13 +67,13 @@ export interface PhotoSource {
   aligned: boolean;
 }
 
-export function photoSource(photo: PhotoDto, wantAligned: boolean): PhotoSource | null {
+export function photoSource(photo: TimelinePhoto, wantAligned: boolean): PhotoSource | null {
   const pick = (variant: string) => photo.variants.find((v) => v.variant === variant && v.format === 'webp');
   const v = (wantAligned && photo.alignmentState === 'aligned' ? pick('aligned') : undefined) ?? pick('display');
   return v ? { src: v.url, width: v.width, height: v.height, aligned: v.variant === 'aligned' } : null;
 }
 
-export function thumbSource(photo: PhotoDto): string | null {
+export function thumbSource(photo: TimelinePhoto): string | null {
   return photo.variants.find((v) => v.variant === 'thumb' && v.format === 'webp')?.url ?? null;
 }
 

@@ -8,8 +8,9 @@ import { Notice } from '../../../components/ui/notice';
 import { EmptyState, Spinner } from '../../../components/ui/page';
 import { cn } from '../../../lib/cn';
 import { formatDate } from '../../../lib/format';
+import { useSeen } from '../../../lib/use-seen';
 import { useMeasurements, usePair, useStartReview, useTimeline } from '../api/compare';
-import { MODE_LABEL, type CompareMode, type PairComparison, type PhotoDto } from '../types';
+import { MODE_LABEL, type CompareMode, type PairComparison, type TimelinePhoto } from '../types';
 import { CompareViewer } from './compare-viewer';
 import { LandmarkOverlay } from './landmark-overlay';
 import { MeasurementPanel } from './measurement-panel';
@@ -18,6 +19,7 @@ import { SheetDialog } from './sheet-dialog';
 import { useCompareState, type CompareParams } from './use-compare-state';
 import { ViewsGrid } from './views-grid';
 
+// The chart library is the heaviest part of the screen and sits below the pair: loaded when scrolled towards.
 const TrendsChart = lazy(() => import('./trends-chart'));
 
 export interface ComparePatient {
@@ -73,7 +75,7 @@ export function Toggle({ pressed, onChange, children, tone = 'light' }: { presse
 }
 
 /** The landmarks of a photo, in the coordinates of the image actually shown (aligned or as taken). */
-export function overlayFor(pair: PairComparison | undefined, photo: PhotoDto, aligned: boolean) {
+export function overlayFor(pair: PairComparison | undefined, photo: TimelinePhoto, aligned: boolean) {
   const side = pair?.baseline.photoId === photo.id ? pair.baseline : pair?.followUp.photoId === photo.id ? pair.followUp : null;
   const data = side ? (aligned && photo.alignmentState === 'aligned' ? side.overlay.aligned : side.overlay.display) : null;
   return data ? <LandmarkOverlay data={data} /> : null;
@@ -118,6 +120,7 @@ export function CompareScreen({ patient, backTo }: { patient: ComparePatient; ba
   const startReview = useStartReview(patient.id);
   const navigate = useNavigate();
   const [sheetOpen, setSheetOpen] = useState(false);
+  const [trendsRef, trendsSeen] = useSeen<HTMLDivElement>();
 
   if (timeline.isPending) return <Spinner label="Loading photos" />;
   if (timeline.error) return <Notice tone="danger">{timeline.error.message}</Notice>;
@@ -271,7 +274,10 @@ export function CompareScreen({ patient, backTo }: { patient: ComparePatient; ba
 
       <Card className="p-5">
         <h3 className="mb-3 text-lg font-semibold">Measurement trends</h3>
-        {measurements.isPending ? (
+        <div ref={trendsRef} />
+        {!trendsSeen ? (
+          <div className="h-56" />
+        ) : measurements.isPending ? (
           <Spinner label="Loading measurements" />
         ) : measurements.error ? (
           <Notice tone="danger">{measurements.error.message}</Notice>

@@ -4,20 +4,20 @@ import { useReactCompareSlider } from 'react-compare-slider/hooks';
 import { cn } from '../../../lib/cn';
 import { formatDate } from '../../../lib/format';
 import { useImage, type PhotoSource } from '../api/compare';
-import type { CompareMode, PhotoDto, TimelineVisit } from '../types';
+import type { CompareMode, TimelinePhoto, TimelineVisit } from '../types';
 import { PhotoFrame } from './photo-frame';
 import { useContainFit } from './use-contain-fit';
 
 export interface Side {
   role: 'Baseline' | 'Follow-up';
   visit: TimelineVisit | null;
-  photo: PhotoDto | null;
+  photo: TimelinePhoto | null;
   source: PhotoSource | null;
 }
 
 export interface StripItem {
   visit: TimelineVisit;
-  photo: PhotoDto;
+  photo: TimelinePhoto;
   source: PhotoSource | null;
 }
 
@@ -45,7 +45,7 @@ export function CompareViewer({
   baseline: Side;
   followUp: Side;
   strip: StripItem[];
-  overlay?: (photo: PhotoDto, source: PhotoSource) => ReactNode;
+  overlay?: (photo: TimelinePhoto, source: PhotoSource) => ReactNode;
   onPick?: (role: Side['role'], visitId: string) => void;
   className?: string;
   tone?: 'light' | 'dark';
@@ -177,7 +177,7 @@ function Strip({
   baselineId?: string;
   followUpId?: string;
   onPick?: (role: Side['role'], visitId: string) => void;
-  overlay?: (photo: PhotoDto, source: PhotoSource) => ReactNode;
+  overlay?: (photo: TimelinePhoto, source: PhotoSource) => ReactNode;
   className?: string;
   tone: 'light' | 'dark';
 }) {
