@@ -11,6 +11,7 @@
  */
 import { randomUUID } from 'node:crypto';
 import Database from 'better-sqlite3';
+import { CHAINS, linkHash, rowHashOf } from '../../server/features/integrity/chain.js';
 
 export interface ScaleSize {
   patients: number;
@@ -235,15 +236,20 @@ export function seedScale(file: string, size: ScaleSize, o: { templatePatientId:
 
   // The access log, oldest first as it is written: three years of staff activity, a tenth of it on the long-history
   // patient's record.
+  // Each row is appended to the access log's hash chain as the app appends it (its seq, the previous link, its hash).
   timed('audit_event', () => {
     const span = 3 * 365 * DAY;
     const step = span / size.auditRows;
+    const head = one(db, `SELECT "seq", "hash" FROM "chain_head" WHERE "chain" = ?`, CHAINS.access.name)!;
+    let seq = Number(head.seq);
+    let prev = String(head.hash);
     for (let i = 0; i < size.auditRows; i++) {
       let r = rnd() * ACTION_TOTAL;
       const action = ACTIONS.find(([, w]) => (r -= w) < 0)![0];
       const patientId = action === 'auth.login' ? null : rnd() < 0.002 ? timelinePatient.id : patients[Math.floor(rnd() * patients.length)].id;
       const actor = users[Math.floor(rnd() * users.length)];
-      copyAudit(tAudit, {
+      const row: Row = {
+        ...tAudit,
         id: randomUUID(),
         at: new Date(nowMs - span + i * step).toISOString(),
         actorId: actor.id,
@@ -255,8 +261,13 @@ export function seedScale(file: string, size: ScaleSize, o: { templatePatientId:
         ip: `10.0.${Math.floor(rnd() * 4)}.${10 + Math.floor(rnd() * 40)}`,
         userAgent: 'Mozilla/5.0 (iPad; CPU OS 17_4 like Mac OS X) AppleWebKit/605.1.15 (KHTML, like Gecko) Version/17.4 Mobile/15E148 Safari/604.1',
         details: action === 'photo.view' ? '{"variant":"display","format":"webp"}' : '{}',
-      });
+      };
+      seq += 1;
+      const rowHash = rowHashOf(CHAINS.access, seq, row);
+      copyAudit(row, { chainSeq: seq, prevHash: prev, rowHash });
+      prev = linkHash(prev, rowHash);
     }
+    db.prepare(`UPDATE "chain_head" SET "seq" = ?, "hash" = ?, "updatedAt" = ? WHERE "chain" = ?`).run(seq, prev, now.toISOString(), CHAINS.access.name);
     return size.auditRows;
   });
 
