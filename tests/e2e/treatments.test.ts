@@ -6,8 +6,8 @@ import { VIEW_BOX, ZONE_TARGETS } from '../../src/features/treatments/components
 import type { ZoneKey } from '../../src/features/treatments/zones.js';
 
 /** Taps a zone of the lip diagram with a touch event at a point inside that zone. */
-async function tapZone(page: Page, zone: ZoneKey) {
-  const svg = page.getByRole('group', { name: /Lip diagram/ });
+async function tapZone(page: Page, zone: keyof typeof ZONE_TARGETS) {
+  const svg = page.getByRole('group', { name: /Lip and lower-face diagram/ });
   await svg.scrollIntoViewIfNeeded();
   const box = (await svg.boundingBox())!;
   const [x, y] = ZONE_TARGETS[zone];
@@ -58,18 +58,23 @@ describe.skipIf(!browserAvailable)('treatment record in Chromium at tablet size'
     const nextYear = `${new Date().getFullYear() + 1}-06-30`;
     await page.getByLabel('Expiry date').fill(nextYear);
 
-    // Hand-computed: upper body 3 × 0.1 = 0.3 mL, lower body 4 × 0.1 = 0.4, cupid's bow 0.1, upper border 2 × 0.1 = 0.2 → 1.0 mL,
-    // one 1 mL syringe (FACTS 17, common practice).
-    for (let i = 0; i < 3; i++) await tapZone(page, 'upper-body');
-    for (let i = 0; i < 4; i++) await tapZone(page, 'lower-body');
+    // Hand-computed: upper body right 2 × 0.1 + left 1 × 0.1 = 0.3 mL, lower body 2 × 0.1 per side = 0.4, cupid's bow 0.1,
+    // upper border 0.1 per side = 0.2 → 1.0 mL, one 1 mL syringe (FACTS 17, common practice).
+    for (let i = 0; i < 2; i++) await tapZone(page, 'upper-body-right');
+    await tapZone(page, 'upper-body-left');
+    for (let i = 0; i < 2; i++) await tapZone(page, 'lower-body-right');
+    for (let i = 0; i < 2; i++) await tapZone(page, 'lower-body-left');
     await tapZone(page, 'cupids-bow');
-    await tapZone(page, 'upper-vermilion-border');
-    await tapZone(page, 'upper-vermilion-border');
+    await tapZone(page, 'upper-vermilion-border-right');
+    await tapZone(page, 'upper-vermilion-border-left');
     const amount = (zone: ZoneKey) => page.locator(`[data-zone-amount="${zone}"]`).innerText();
-    expect(await amount('upper-body')).toBe('0.3');
-    expect(await amount('lower-body')).toBe('0.4');
+    expect(await amount('upper-body-right')).toBe('0.2');
+    expect(await amount('upper-body-left')).toBe('0.1');
+    expect(await amount('lower-body-right')).toBe('0.2');
+    expect(await amount('lower-body-left')).toBe('0.2');
     expect(await amount('cupids-bow')).toBe('0.1');
-    expect(await amount('upper-vermilion-border')).toBe('0.2');
+    expect(await amount('upper-vermilion-border-right')).toBe('0.1');
+    expect(await amount('upper-vermilion-border-left')).toBe('0.1');
     expect(await page.getByTestId('filler-total').innerText()).toBe('1 mL');
     await page.getByRole('button', { name: 'Linear threading' }).click();
     await screenshot(page, 'treatment-editor-1024x768');
@@ -82,7 +87,7 @@ describe.skipIf(!browserAvailable)('treatment record in Chromium at tablet size'
     for (let i = 0; i < 3; i++) await tapZone(page, 'dao-right');
     for (let i = 0; i < 3; i++) await tapZone(page, 'dao-left');
     expect(await amount('dao-right')).toBe('3');
-    expect(await page.locator('g[data-zone="upper-body"]').getAttribute('aria-disabled')).toBe('true');
+    expect(await page.locator('g[data-zone="upper-body-right"]').getAttribute('aria-disabled')).toBe('true');
 
     await page.getByRole('button', { name: 'Record treatment' }).click();
     await page.getByText('Treatment recorded').waitFor();
@@ -144,12 +149,12 @@ describe.skipIf(!browserAvailable)('treatment record in Chromium at tablet size'
     const visit = await todaysVisit(page, 'treatment', 'booked');
     await page.goto(`${app.url}/visits/${visit.id}`);
     await page.getByRole('heading', { name: 'Treatment record' }).waitFor();
-    await tapZone(page, 'lower-body');
+    await tapZone(page, 'lower-body-left');
     await tapZone(page, 'oral-commissure-left');
     expect(await page.getByTestId('filler-total').innerText()).toBe('0.2 mL');
     // The demo patient was treated before: the screen shows the cumulative filler to date beside this visit's.
     expect(await page.getByTestId('patient-to-date').innerText()).toMatch(/^Earlier visits: [\d.]+ mL filler in \d+ sessions?, last on .+ With this visit: [\d.]+ mL\.$/);
-    await page.getByRole('group', { name: /Lip diagram/ }).scrollIntoViewIfNeeded();
+    await page.getByRole('group', { name: /Lip and lower-face diagram/ }).scrollIntoViewIfNeeded();
     await screenshot(page, 'treatment-editor-768x1024');
     await context.close();
 

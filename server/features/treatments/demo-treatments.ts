@@ -11,13 +11,14 @@ import { reminderDueDates } from '../reminders/reminders.service.js';
 import { addMonths, dayIn } from '../../lib/time.js';
 import type { LineKind, ZoneKey } from './treatments.schemas.js';
 
-/** Invented first sessions and top-ups (mL per zone), all within the usual 0.5–1.5 mL per session (FACTS 17). */
+/** Invented first sessions and top-ups (mL per zone), all within the usual 0.5–1.5 mL per session (FACTS 17, common practice). */
 const FIRST: [ZoneKey, number][][] = [
-  [['upper-body', 0.3], ['lower-body', 0.4], ['cupids-bow', 0.1], ['upper-vermilion-border', 0.2]],
-  [['upper-body', 0.2], ['lower-body', 0.3], ['wet-dry-border-upper', 0.1], ['oral-commissure-right', 0.1], ['oral-commissure-left', 0.1]],
-  [['upper-vermilion-border', 0.2], ['lower-vermilion-border', 0.1], ['philtral-column-right', 0.05], ['philtral-column-left', 0.05], ['upper-body', 0.2]],
+  [['upper-body-right', 0.15], ['upper-body-left', 0.15], ['lower-body-right', 0.2], ['lower-body-left', 0.2], ['cupids-bow', 0.1], ['upper-vermilion-border-right', 0.1], ['upper-vermilion-border-left', 0.1]],
+  [['upper-body-right', 0.1], ['upper-body-left', 0.1], ['lower-body-right', 0.15], ['lower-body-left', 0.15], ['wet-dry-border-upper', 0.1], ['oral-commissure-right', 0.1], ['oral-commissure-left', 0.1]],
+  [['upper-vermilion-border-right', 0.1], ['upper-vermilion-border-left', 0.1], ['lower-vermilion-border-right', 0.05], ['lower-vermilion-border-left', 0.05], ['philtral-column-right', 0.05], ['philtral-column-left', 0.05], ['upper-body-right', 0.1], ['upper-body-left', 0.1]],
+  [['chin', 0.5], ['marionette-right', 0.2], ['marionette-left', 0.2], ['lower-body-right', 0.1], ['lower-body-left', 0.1]],
 ];
-const TOP_UP: [ZoneKey, number][] = [['upper-body', 0.2], ['lower-body', 0.2], ['cupids-bow', 0.1]];
+const TOP_UP: [ZoneKey, number][] = [['upper-body-right', 0.1], ['upper-body-left', 0.1], ['lower-body-right', 0.1], ['lower-body-left', 0.1], ['cupids-bow', 0.1]];
 
 const lotFor = (i: number) => `LR${String(24_000 + i * 37).padStart(6, '0')}`;
 

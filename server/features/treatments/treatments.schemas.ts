@@ -16,14 +16,18 @@ export const UNIT_OF_KIND: Record<ProductKind, ProductUnit> = { filler: 'mL', to
 export const PRODUCT_KIND_LABELS: Record<ProductKind, string> = { filler: 'HA filler', toxin: 'Neuromodulator', hyaluronidase: 'Hyaluronidase' };
 
 /**
- * The zones of the lip diagram. Left and right are the patient's own sides (on the diagram, the patient's right
- * is drawn on the viewer's left, as when facing the patient).
+ * The zones of the lip and lower-face diagram. Left and right are the patient's own sides (on the diagram, the
+ * patient's right is drawn on the viewer's left, as when facing the patient).
  */
 export const FILLER_ZONES = [
-  'upper-vermilion-border',
-  'lower-vermilion-border',
-  'upper-body',
-  'lower-body',
+  'upper-vermilion-border-right',
+  'upper-vermilion-border-left',
+  'lower-vermilion-border-right',
+  'lower-vermilion-border-left',
+  'upper-body-right',
+  'upper-body-left',
+  'lower-body-right',
+  'lower-body-left',
   'cupids-bow',
   'philtral-column-right',
   'philtral-column-left',
@@ -31,20 +35,36 @@ export const FILLER_ZONES = [
   'wet-dry-border-lower',
   'oral-commissure-right',
   'oral-commissure-left',
+  'perioral-lines-upper',
+  'perioral-lines-lower',
+  'marionette-right',
+  'marionette-left',
+  'pre-jowl-sulcus-right',
+  'pre-jowl-sulcus-left',
+  'chin',
 ] as const;
-/** Neuromodulator into the depressor anguli oris, per side. */
-export const TOXIN_ZONES = ['dao-right', 'dao-left'] as const;
-export const ZONES = [...FILLER_ZONES, ...TOXIN_ZONES] as const;
+/** Whole-lip zones of records made before the diagram had sides: still read and re-saved, no longer offered. */
+export const LEGACY_FILLER_ZONES = ['upper-vermilion-border', 'lower-vermilion-border', 'upper-body', 'lower-body'] as const;
+/** Neuromodulator into the lower face: the depressor anguli oris per side, the mentalis, the orbicularis oris. */
+export const TOXIN_ZONES = ['dao-right', 'dao-left', 'mentalis', 'orbicularis-oris'] as const;
+export const ZONES = [...FILLER_ZONES, ...LEGACY_FILLER_ZONES, ...TOXIN_ZONES] as const;
 export type FillerZone = (typeof FILLER_ZONES)[number];
 export type ToxinZone = (typeof TOXIN_ZONES)[number];
 export type ZoneKey = (typeof ZONES)[number];
+/** The zones the diagram offers for each kind. */
 export const ZONES_OF_KIND: Record<LineKind, readonly ZoneKey[]> = { filler: FILLER_ZONES, toxin: TOXIN_ZONES };
+/** The zones a stored line of each kind may hold (the offered ones and the legacy whole-lip zones). */
+export const ACCEPTED_ZONES_OF_KIND: Record<LineKind, readonly ZoneKey[]> = { filler: [...FILLER_ZONES, ...LEGACY_FILLER_ZONES], toxin: TOXIN_ZONES };
 
 export const ZONE_LABELS: Record<ZoneKey, string> = {
-  'upper-vermilion-border': 'Upper vermilion border',
-  'lower-vermilion-border': 'Lower vermilion border',
-  'upper-body': 'Upper lip body',
-  'lower-body': 'Lower lip body',
+  'upper-vermilion-border-right': 'Upper vermilion border (right)',
+  'upper-vermilion-border-left': 'Upper vermilion border (left)',
+  'lower-vermilion-border-right': 'Lower vermilion border (right)',
+  'lower-vermilion-border-left': 'Lower vermilion border (left)',
+  'upper-body-right': 'Upper lip body (right)',
+  'upper-body-left': 'Upper lip body (left)',
+  'lower-body-right': 'Lower lip body (right)',
+  'lower-body-left': 'Lower lip body (left)',
   'cupids-bow': "Cupid's bow",
   'philtral-column-right': 'Philtral column (right)',
   'philtral-column-left': 'Philtral column (left)',
@@ -52,8 +72,21 @@ export const ZONE_LABELS: Record<ZoneKey, string> = {
   'wet-dry-border-lower': 'Wet–dry border, lower',
   'oral-commissure-right': 'Oral commissure (right)',
   'oral-commissure-left': 'Oral commissure (left)',
+  'perioral-lines-upper': 'Perioral lines, upper',
+  'perioral-lines-lower': 'Perioral lines, lower',
+  'marionette-right': 'Marionette line (right)',
+  'marionette-left': 'Marionette line (left)',
+  'pre-jowl-sulcus-right': 'Pre-jowl sulcus (right)',
+  'pre-jowl-sulcus-left': 'Pre-jowl sulcus (left)',
+  chin: 'Chin',
+  'upper-vermilion-border': 'Upper vermilion border (both sides)',
+  'lower-vermilion-border': 'Lower vermilion border (both sides)',
+  'upper-body': 'Upper lip body (both sides)',
+  'lower-body': 'Lower lip body (both sides)',
   'dao-right': 'Depressor anguli oris (right)',
   'dao-left': 'Depressor anguli oris (left)',
+  mentalis: 'Mentalis',
+  'orbicularis-oris': 'Orbicularis oris',
 };
 
 export const TECHNIQUES = ['linear-threading', 'serial-puncture', 'bolus', 'fanning', 'vertical-tenting'] as const;

@@ -14,7 +14,7 @@ import { dayIn } from '../../lib/time.js';
 import { lotStatus, type LotStatus } from './dates.js';
 import { assertScreeningCleared } from './screening.js';
 import { lineTotal, toMilli, treatmentTotals, volumeWarnings, type Totals } from './totals.js';
-import { LIMITS, ZONES_OF_KIND, type LineKind, type ADVERSE_EVENTS, type TECHNIQUES, type treatmentInputSchema } from './treatments.schemas.js';
+import { ACCEPTED_ZONES_OF_KIND, LIMITS, ZONE_LABELS, type LineKind, type ADVERSE_EVENTS, type TECHNIQUES, type treatmentInputSchema } from './treatments.schemas.js';
 import type { z } from 'zod';
 
 type TreatmentInput = z.output<typeof treatmentInputSchema>;
@@ -44,10 +44,10 @@ export function checkLines(input: TreatmentInput, products: Map<string, Product>
     if (line.unit !== p.unit) {
       throw lineError(i, 'unit', `${p.name} is a ${p.kind} measured in ${p.unit}, not ${line.unit}.`, 'UNIT_MISMATCH');
     }
-    const allowed = ZONES_OF_KIND[kind];
+    const allowed = ACCEPTED_ZONES_OF_KIND[kind];
     line.doses.forEach((d, j) => {
       if (!allowed.includes(d.zone)) {
-        throw lineError(i, `doses.${j}.zone`, p.kind === 'filler' ? `Filler goes into the lip zones, not ${d.zone}.` : `Toxin is recorded for the depressor anguli oris (left or right), not ${d.zone}.`, 'ZONE_NOT_FOR_PRODUCT');
+        throw lineError(i, `doses.${j}.zone`, kind === 'filler' ? `Filler goes into the lip and lower-face zones, not ${ZONE_LABELS[d.zone] ?? d.zone}.` : `Neuromodulator is recorded for the depressor anguli oris, mentalis or orbicularis oris, not ${ZONE_LABELS[d.zone] ?? d.zone}.`, 'ZONE_NOT_FOR_PRODUCT');
       }
       const max = p.kind === 'filler' ? LIMITS.fillerPerZoneMl : LIMITS.toxinPerZoneU;
       if (d.amount > max) throw lineError(i, `doses.${j}.amount`, `${d.amount} ${p.unit} in one zone is not plausible (at most ${max} ${p.unit}). Check the amount.`, 'AMOUNT_TOO_LARGE');
