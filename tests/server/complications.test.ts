@@ -4,7 +4,7 @@ import type { Product } from '../../server/entities/product.js';
 import { renderPortrait } from '../../server/media/synthetic-portrait.js';
 import { addDays, dayIn } from '../../server/lib/time.js';
 import { createPatient, makeTestApp, signedIn, type Client, type TestApp } from '../helpers/app.js';
-import { binary, pdfTool } from '../helpers/consents.js';
+import { binary, pdfTool, signatureDictionaries } from '../helpers/consents.js';
 import { upload } from '../helpers/photos.js';
 import { createProducts, createVisit } from '../helpers/treatments.js';
 
@@ -159,6 +159,9 @@ describe('PDF summary', () => {
     const pdf = res.body as Buffer;
     // qpdf and poppler's pdftotext: general-purpose PDF tools read the file back.
     expect(pdfTool(pdf, 'qpdf')).toMatch(/No syntax or stream encoding errors/);
+    // Signed by the clinic like its consents: a CMS signature (RFC 5652) over the byte range, checked by poppler's pdfsig.
+    expect(pdfTool(pdf, 'pdfsig')).toContain('Signature Validation: Signature is Valid.');
+    expect(signatureDictionaries(pdf)[0]['/Reason']).toMatch(/^u:Complication record of Ottilie Onsetworth, onset /);
     const text = pdfTool(pdf, 'pdftotext').replace(/\s+/g, ' ');
     expect(text).toContain('Complication record');
     expect(text).toContain('Ottilie Onsetworth');

@@ -1,7 +1,8 @@
 /**
  * The complication summary: a PDF for an insurer or regulator with the treatment (products, lots, zones), the
  * episode's onset, signs, timed actions, follow-ups and outcome, photo pairs against the baseline, and the clinic's
- * protocol pointer. It is a record of what happened; it gives no treatment advice and no doses (DESIGN §8).
+ * protocol pointer, signed by the clinic like its consents. It is a record of what happened; it gives no treatment
+ * advice and no doses (DESIGN §8).
  */
 import fs from 'node:fs';
 import { createRequire } from 'node:module';
@@ -17,6 +18,7 @@ import { Treatment } from '../../entities/treatment.js';
 import { nowIso } from '../../lib/time.js';
 import { sha256Hex } from '../consents/hash.js';
 import { alignGlyphRecords } from '../consents/pdf-fonts.js';
+import { signingIdentity, signPdf } from '../../signing/pdf-signing.js';
 import { getSettings } from '../settings/settings.service.js';
 import { ZONE_LABELS } from '../treatments/treatments.schemas.js';
 import { ACTION_LABELS, OUTCOME_LABELS, SIGN_LABELS } from './complications.schemas.js';
@@ -182,6 +184,11 @@ export async function buildEpisodePdf(deps: Deps, e: ComplicationEpisode): Promi
   pages.forEach((p, i) =>
     p.drawText(`${settings.clinicName} · complication record of ${name} · generated ${when(generatedAt)} · page ${i + 1} of ${pages.length}`, { x: M, y: 24, size: 7.5, font: regular, color: MUTED }),
   );
-  const out = Buffer.from(await doc.save());
+  const out = await signPdf(doc, await signingIdentity(db, deps.config), {
+    reason: `Complication record of ${name}, onset ${when(e.onsetAt)}`,
+    signingTime: new Date(generatedAt),
+    contactInfo: settings.clinicName,
+    location: settings.clinicName,
+  });
   return { bytes: out, sha256: sha256Hex(out), fileName: `complication-${patient.code}-${e.onsetAt.slice(0, 10)}.pdf` };
 }
